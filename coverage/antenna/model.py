@@ -1,0 +1,97 @@
+"""Input types of the array physics (validated in ``lobeplan.site``)."""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+__all__ = ["Ground", "GROUND_CLASSES", "Feed", "State", "ArrayOption", "ArraySpec"]
+
+
+@dataclass(frozen=True, slots=True)
+class Ground:
+    """Far-field ground constants.
+
+    ``perfect`` means a perfectly conducting plane (reflection coefficient +1
+    for vertical polarization); ``eps_r`` and ``sigma_s_m`` are then ignored.
+    """
+
+    name: str
+    eps_r: float
+    sigma_s_m: float
+    perfect: bool = False
+
+
+# ITU-R P.527 (HF values read from its curves; from memory) and handbook
+# practice ("average", "very-good", "poor": common practice, no single source).
+GROUND_CLASSES: dict[str, Ground] = {
+    "perfect": Ground("perfect", 1.0, 0.0, perfect=True),
+    "sea": Ground("sea", 70.0, 5.0),
+    "fresh-water": Ground("fresh-water", 80.0, 0.003),
+    "wet": Ground("wet", 30.0, 0.01),
+    "land": Ground("land", 22.0, 0.003),
+    "medium-dry": Ground("medium-dry", 15.0, 0.001),
+    "very-dry": Ground("very-dry", 3.0, 0.0001),
+    "average": Ground("average", 13.0, 0.005),
+    "very-good": Ground("very-good", 20.0, 0.0303),
+    "poor": Ground("poor", 13.0, 0.002),
+}
+
+
+@dataclass(frozen=True, slots=True)
+class Feed:
+    """The coaxial cable every ``line_m`` state is built from."""
+
+    z0_ohm: float = 50.0
+    velocity_factor: float = 0.66
+    loss_db_per_100m_at_10mhz: float = 1.7  # matched loss; scales with sqrt(f)
+
+
+@dataclass(frozen=True, slots=True)
+class State:
+    """One switch position.
+
+    Exactly one form: forced base currents (``phase_deg`` with ``amplitude``,
+    the same on every band: an ideal feed) or lines from a common junction
+    (``line_m``, physical length of each element's line in metres).
+    Phasors use e^{j omega t}: a negative phase lags.
+    """
+
+    name: str
+    phase_deg: tuple[float, ...] | None = None
+    amplitude: tuple[float, ...] | None = None
+    line_m: tuple[float, ...] | None = None
+
+    @property
+    def is_fed(self) -> bool:
+        return self.line_m is not None
+
+
+@dataclass(frozen=True, slots=True)
+class ArrayOption:
+    """One way to build the array: a layout, its element positions, its states.
+
+    ``positions_m`` are (along, across) in metres in the array frame: along
+    points along the baseline bearing, across 90 deg clockwise from it.
+    Element 1 is at the origin.
+    """
+
+    name: str
+    layout: str  # single | pair | line | square | custom
+    spacing_m: float | None
+    positions_m: tuple[tuple[float, float], ...]
+    states: tuple[State, ...]
+
+    @property
+    def n_elements(self) -> int:
+        return len(self.positions_m)
+
+
+@dataclass(frozen=True, slots=True)
+class ArraySpec:
+    """Physical array common to every option: elements, ground, cable."""
+
+    height_m: float
+    radius_m: float
+    ground: Ground
+    ground_loss_ohm: float
+    feed: Feed
+    options: tuple[ArrayOption, ...]

@@ -1,0 +1,39 @@
+"""Input types of the propagation model (validated in ``lobeplan.site``)."""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+__all__ = ["PropagationSettings"]
+
+
+@dataclass(frozen=True, slots=True)
+class PropagationSettings:
+    """How takeoff-angle needs are found.
+
+    ``hours_utc`` holds half-open ranges [start, end) in whole hours that may
+    wrap midnight, e.g. ((20, 24), (0, 6)); the default is all day.
+    Exactly one of ``solar_flux`` (12-month mean F10.7, sfu) and
+    ``sunspot_number`` (12-month smoothed) is used by the climatology model.
+    """
+
+    model: str = "geometry"  # geometry | climatology
+    month: int = 1
+    year: int = 2026
+    solar_flux: float | None = None
+    sunspot_number: float | None = None
+    hours_utc: tuple[tuple[int, int], ...] = ((0, 24),)
+    min_elevation_deg: float = 3.0
+    points_per_goal: int = 500
+    f2_height_km: float = 300.0
+    e_height_km: float = 110.0
+    seed: int = 1
+
+    @property
+    def hours(self) -> tuple[int, ...]:
+        """The UT hours (0..23) the ranges cover, sorted, each once."""
+        out: set[int] = set()
+        for start, end in self.hours_utc:
+            if end <= start:
+                end += 24
+            out.update(h % 24 for h in range(start, end))
+        return tuple(sorted(out))
