@@ -1,0 +1,124 @@
+"""The console front: parses, calls, prints. No physics here.
+
+Each verb lives in a module of ``lobeplan.report`` that provides
+
+- ``HELP``: one line for ``--help``;
+- ``add_arguments(parser)``: the verb's own options (optional);
+- ``build(site, args) -> dict``: the JSON-ready result (strict JSON);
+- ``format_text(result) -> str``: the table a person reads;
+- ``write_files(site, args, result, out_dir) -> list[Path]`` (optional):
+  files for ``--out``, each written atomically.
+"""
+from __future__ import annotations
+
+import argparse
+import importlib
+import sys
+from pathlib import Path
+from typing import Sequence
+
+from .errors import LobeplanError
+
+__all__ = ["main"]
+
+VERBS = {
+    "demo": "lobeplan.report.demo",
+    "plan": "lobeplan.report.plan",
+    "paths": "lobeplan.report.paths",
+    "needs": "lobeplan.report.needs",
+    "pattern": "lobeplan.report.pattern",
+    "feed": "lobeplan.report.feed",
+    "map": "lobeplan.report.map",
+    "exposure": "lobeplan.report.exposure",
+}
+
+
+class _Parser(argparse.ArgumentParser):
+    """argparse that reports one line and exit status 2 (its own convention)."""
+
+    def error(self, message: str) -> None:  # noqa: D401
+        self.exit(2, f"lobeplan: error: {message}\n")
+
+
+def _modules() -> dict[str, object]:
+    out = {}
+    for verb, name in VERBS.items():
+        try:
+            out[verb] = importlib.import_module(name)
+        except ModuleNotFoundError as exc:
+            if exc.name != name:
+                raise
+    return out
+
+
+def _build_parser(modules: dict[str, object]) -> argparse.ArgumentParser:
+    parser = _Parser(prog="lobeplan", description="Plan a phased array of HF verticals "
+                     "against the regions you want to reach.")
+    parser.add_argument("--debug", action="store_true", help="show the traceback of an internal error")
+    sub = parser.add_subparsers(dest="verb", metavar="VERB", parser_class=_Parser)
+    sub.required = True
+    for verb, mod in modules.items():
+        p = sub.add_parser(verb, help=getattr(mod, "HELP", verb), description=getattr(mod, "HELP", verb))
+        if verb != "demo":
+            p.add_argument("site", metavar="SITE.toml", help="the site file")
+        p.add_argument("--json", action="store_true", help="machine-readable result on stdout, nothing else there")
+        p.add_argument("--out", metavar="DIR", default=None, help="write result files into DIR")
+        p.add_argument("--debug", action="store_true", help="show the traceback of an internal error")
+        if hasattr(mod, "add_arguments"):
+            mod.add_arguments(p)
+    return parser
+
+
+def _run(args: argparse.Namespace, mod: object) -> int:
+    from .fileio import dumps_json, ensure_dir
+    from .site import load
+
+    if hasattr(mod, "site_path"):
+        site_path = mod.site_path(args)
+    else:
+        site_path = Path(args.site)
+    if hasattr(mod, "check_arguments"):
+        mod.check_arguments(args)
+    out_dir = getattr(args, "out", None)
+    if out_dir is None and hasattr(mod, "default_out"):
+        out_dir = mod.default_out(args)
+    if out_dir is not None:
+        out_dir = ensure_dir(out_dir)  # fail before any work is done
+    site = load(site_path)
+    result = mod.build(site, args)
+    text = dumps_json(result) if args.json else mod.format_text(result)
+    written = []
+    if out_dir is not None and hasattr(mod, "write_files"):
+        written = mod.write_files(site, args, result, out_dir)
+    sys.stdout.write(text if text.endswith("\n") else text + "\n")
+    if written and not args.json:
+        sys.stdout.write("".join(f"wrote {p}\n" for p in written))
+    return 0
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Run the command line; returns the exit status."""
+    argv = list(sys.argv[1:] if argv is None else argv)
+    debug = "--debug" in argv
+    try:
+        modules = _modules()
+        parser = _build_parser(modules)
+        args = parser.parse_args(argv)
+        return _run(args, modules[args.verb])
+    except SystemExit as exc:  # argparse: --help or a usage error
+        return int(exc.code or 0) if isinstance(exc.code, int) else 2
+    except LobeplanError as exc:
+        sys.stderr.write(f"lobeplan: {exc}\n")
+        return 2
+    except KeyboardInterrupt:
+        sys.stderr.write("lobeplan: interrupted; no partial files were left\n")
+        return 130
+    except BrokenPipeError:
+        return 1
+    except Exception as exc:  # an internal error: still one line unless asked
+        if debug:
+            raise
+        first = str(exc).splitlines()[0] if str(exc) else ""
+        sys.stderr.write(f"lobeplan: internal error: {type(exc).__name__}: {first} "
+                         "(rerun with --debug for the traceback)\n")
+        return 1
