@@ -18,12 +18,12 @@ EARTH_RADIUS_KM = 6371.0  # the sphere of the hop geometry and the long path
 GEOD = Geod(ellps="WGS84")
 
 
-def inverse(lon1_deg: float, lat1_deg: float, lons_deg: np.ndarray, lats_deg: np.ndarray
-            ) -> tuple[np.ndarray, np.ndarray]:
+def inverse(lon1_deg: float, lat1_deg: float, lons_deg: np.ndarray, lats_deg: np.ndarray,
+            geod: Geod = GEOD) -> tuple[np.ndarray, np.ndarray]:
     """Forward azimuth (deg, 0..360) and distance (km) from one point to many."""
     lons = np.asarray(lons_deg, dtype=float)
     lats = np.asarray(lats_deg, dtype=float)
-    az, _, dist_m = GEOD.inv(np.full_like(lons, lon1_deg), np.full_like(lats, lat1_deg), lons, lats)
+    az, _, dist_m = geod.inv(np.full_like(lons, lon1_deg), np.full_like(lats, lat1_deg), lons, lats)
     return np.mod(np.asarray(az), 360.0), np.asarray(dist_m) / 1000.0
 
 
