@@ -1,0 +1,370 @@
+"""The plan: every orientation, spacing option and switch state against the goals.
+
+Score (DESIGN.md): for goal g on band b, state s and baseline bearing theta,
+
+    mean_gain = sum(W G) / sum(W),  G floored at -30 dBi
+    advantage = mean_gain(state) - mean_gain(one vertical, same needs)
+    value     = advantage - avoid_weight * advantage over the avoid regions'
+                own needs on band b (pooled), same state
+    V_gb      = the best value over the option's states (switchable array)
+    score     = sum(w_g o_gb V_gb) / sum(w_g o_gb)
+
+with W the need weights of the goal on the band (sum = open fraction o_gb)
+and w_g the goal weight. The score is thus a mean advantage in dB over one
+vertical. All bearings come from one circular cross-correlation per
+(goal, band, state) (see :mod:`lobeplan.plan.sweep`).
+
+The site argument is duck-typed on :class:`lobeplan.site.Site`.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Callable
+
+import numpy as np
+
+from ..antenna.pattern import array_pattern, vertical_gain_dbi
+from ..geo.paths import goal_paths
+from ..geo.regions import goal_points, region_points
+from ..grid import N_AZIMUTH
+from ..propagation.needs import Needs, band_needs, prepare_goal
+from .sweep import correlate, floored, orientations, spectrum, weighted_quantile
+
+__all__ = ["GoalBand", "OptionPlan", "Plan", "RankEntry", "GoalRow", "make_plan", "needs_for_site",
+           "in_allowed", "distinct_maxima"]
+
+DISTINCT_DEG = 10.0  # ranking: maxima at least this far apart
+WINDOW_DB = 1.0      # orientation sensitivity: bearings within this of the best
+
+
+@dataclass(frozen=True, slots=True)
+class GoalBand:
+    """One goal on one band, with its needs (and the pooled avoid needs)."""
+
+    goal_index: int
+    goal_name: str
+    path: str
+    band_name: str
+    freq_hz: float
+    weight: float
+    needs: Needs
+    avoid_needs: Needs | None
+    avoid_weight: float
+
+
+@dataclass(frozen=True, slots=True)
+class GoalRow:
+    """How one goal on one band is served at one bearing."""
+
+    goal: str
+    path: str
+    band: str
+    state: str
+    mean_gain_dbi: float | None
+    p10_gain_dbi: float | None
+    advantage_db: float | None
+    value_db: float | None
+    open_fraction: float
+    avoid_advantage_db: float | None
+    reference_gain_dbi: float | None
+
+
+@dataclass(frozen=True, slots=True)
+class RankEntry:
+    option: str
+    layout: str
+    spacing_m: float | None
+    orientation_deg: float
+    score_db: float
+    goals: tuple[GoalRow, ...]
+
+
+@dataclass(frozen=True)
+class OptionPlan:
+    """Sweep result of one spacing option."""
+
+    option: str
+    layout: str
+    spacing_m: float | None
+    orientation_deg: np.ndarray        # (n_theta,)
+    score_db: np.ndarray               # (n_theta,), NaN where nothing is open
+    allowed: np.ndarray                # (n_theta,) bool
+    best_orientation_deg: float | None
+    best_score_db: float | None
+    window_deg: tuple[float, float] | None   # bearings within 1 dB of the best (clockwise)
+    values_db: np.ndarray              # (n_goalband, n_theta) best value per goal-band
+    best_state: np.ndarray             # (n_goalband, n_theta) index of that state
+    state_names: tuple[str, ...]
+    patterns: dict = field(repr=False, default_factory=dict)   # (band, state) -> ArrayResult
+
+
+@dataclass(frozen=True)
+class Plan:
+    goal_bands: tuple[GoalBand, ...]
+    options: tuple[OptionPlan, ...]
+    ranking: tuple[RankEntry, ...]
+    reference_gain_dbi: dict        # band name -> (91,) single-vertical gain
+    caveats: tuple[str, ...]
+    step_deg: float
+    fixed: bool
+
+
+def in_allowed(thetas_deg: np.ndarray, allowed: tuple[tuple[float, float], ...]) -> np.ndarray:
+    """Bearings inside any allowed (from, to) clockwise range; all when none given."""
+    thetas = np.asarray(thetas_deg, dtype=float)
+    if not allowed:
+        return np.ones(thetas.shape, dtype=bool)
+    ok = np.zeros(thetas.shape, dtype=bool)
+    for lo, hi in allowed:
+        span = (hi - lo) % 360.0
+        if span == 0.0 and hi != lo:
+            span = 360.0
+        ok |= np.mod(thetas - lo, 360.0) <= span + 1e-9
+    return ok
+
+
+def needs_for_site(site, progress: Callable[[int, int], None] | None = None
+                   ) -> tuple[tuple[GoalBand, ...], tuple[str, ...]]:
+    """Need weights for every (goal, band) of the site, avoid regions pooled."""
+    prop = site.propagation
+    geometries: dict[tuple, object] = {}
+
+    def geometry(text: str, clip, key: str, path: str):
+        k = (text, clip, path)
+        if k not in geometries:
+            lons, lats = region_points(site, text, clip, key)
+            bearing, dist = goal_paths(site.station, lons, lats, path)
+            geometries[k] = prepare_goal(prop, site.station.lon_deg, site.station.lat_deg, lons, lats,
+                                         bearing, dist, path, progress=progress)
+        return geometries[k]
+
+    out = []
+    caveats: dict[str, None] = {}
+    for gi, goal in enumerate(site.goals):
+        geo = geometry(goal.region, goal.clip, f"{goal.key}.region", goal.path)
+        avoid_geos = [geometry(a, None, f"{goal.key}.avoid[{j + 1}]", goal.path)
+                      for j, a in enumerate(goal.avoid)]
+        for band in site.goal_bands(goal):
+            needs = band_needs(geo, band.freq_hz, prop)
+            for c in needs.caveats:
+                caveats[c] = None
+            avoid = None
+            if avoid_geos:
+                parts = [band_needs(g, band.freq_hz, prop) for g in avoid_geos]
+                avoid = _pool(parts)
+            out.append(GoalBand(gi, goal.name, goal.path, band.name, band.freq_hz, goal.weight, needs,
+                                avoid, goal.avoid_weight))
+    return tuple(out), tuple(caveats)
+
+
+def _pool(parts: list[Needs]) -> Needs:
+    """Several regions' needs as one: weights averaged, so the sum stays a fraction."""
+    if len(parts) == 1:
+        return parts[0]
+    from dataclasses import replace
+
+    w = sum(p.weights for p in parts) / len(parts)
+    return replace(parts[0], weights=w, open_fraction=float(w.sum()))
+
+
+def _mean_and_ref(spec_w: np.ndarray, w_sum: float, gain_spec: np.ndarray, ref_mean: float,
+                  step_deg: float) -> np.ndarray:
+    """Advantage over one vertical at every bearing."""
+    return correlate(spec_w, gain_spec, step_deg) / w_sum - ref_mean
+
+
+def _ref_mean(weights: np.ndarray, ref_gain_dbi: np.ndarray) -> float:
+    return float(np.sum(weights * floored(ref_gain_dbi)[:, None]) / np.sum(weights))
+
+
+def make_plan(site, goal_bands: tuple[GoalBand, ...] | None = None,
+              progress: Callable[[int, int], None] | None = None) -> Plan:
+    """Plan every option of the site over every allowed bearing."""
+    caveats: tuple[str, ...] = ()
+    if goal_bands is None:
+        goal_bands, caveats = needs_for_site(site, progress)
+    spec = site.array
+    orient = site.orientation
+    fixed = orient.fixed_deg is not None
+    thetas = np.array([orient.fixed_deg]) if fixed else orientations(orient.step_deg)
+    allowed = in_allowed(thetas, orient.allowed_deg)
+    bands = {gb.band_name: gb.freq_hz for gb in goal_bands}
+    ref = {name: vertical_gain_dbi(spec, f) for name, f in bands.items()}
+
+    # band-independent pieces of each goal-band, computed once for all options
+    prepared = []
+    for gb in goal_bands:
+        w = gb.needs.weights
+        w_sum = float(w.sum())
+        entry = {"open": w_sum, "spec": spectrum(w) if w_sum > 0 else None,
+                 "ref": _ref_mean(w, ref[gb.band_name]) if w_sum > 0 else None}
+        aw = gb.avoid_needs.weights if gb.avoid_needs is not None else None
+        a_sum = float(aw.sum()) if aw is not None else 0.0
+        entry["avoid_open"] = a_sum
+        entry["avoid_spec"] = spectrum(aw) if a_sum > 0 else None
+        entry["avoid_ref"] = _ref_mean(aw, ref[gb.band_name]) if a_sum > 0 else None
+        prepared.append(entry)
+
+    option_plans = []
+    for option in spec.options:
+        patterns = {}
+        gain_specs = {}
+        for band_name, f in bands.items():
+            for s in option.states:
+                res = array_pattern(spec, option, s, f)
+                patterns[(band_name, s.name)] = res
+                gain_specs[(band_name, s.name)] = spectrum(floored(res.gain_dbi))
+        n_gb, n_t = len(goal_bands), thetas.size
+        values = np.full((n_gb, n_t), np.nan)
+        best_state = np.zeros((n_gb, n_t), dtype=int)
+        for i, (gb, pre) in enumerate(zip(goal_bands, prepared)):
+            if pre["spec"] is None:
+                continue
+            per_state = []
+            for s in option.states:
+                gspec = gain_specs[(gb.band_name, s.name)]
+                if fixed:
+                    v = _fixed_advantage(gb.needs.weights, patterns[(gb.band_name, s.name)].gain_dbi,
+                                         thetas[0], pre["ref"])
+                else:
+                    v = _mean_and_ref(pre["spec"], pre["open"], gspec, pre["ref"], orient.step_deg)
+                if pre["avoid_spec"] is not None and gb.avoid_weight > 0:
+                    if fixed:
+                        av = _fixed_advantage(gb.avoid_needs.weights,
+                                              patterns[(gb.band_name, s.name)].gain_dbi, thetas[0],
+                                              pre["avoid_ref"])
+                    else:
+                        av = _mean_and_ref(pre["avoid_spec"], pre["avoid_open"], gspec, pre["avoid_ref"],
+                                           orient.step_deg)
+                    v = v - gb.avoid_weight * av
+                per_state.append(v)
+            stack = np.vstack(per_state)
+            best_state[i] = np.argmax(stack, axis=0)
+            values[i] = np.max(stack, axis=0)
+        weights = np.array([gb.weight * pre["open"] for gb, pre in zip(goal_bands, prepared)])
+        open_rows = np.isfinite(values[:, 0]) & (weights > 0)
+        if open_rows.any():
+            score = (weights[open_rows, None] * values[open_rows]).sum(axis=0) / weights[open_rows].sum()
+        else:
+            score = np.full(n_t, np.nan)
+        best_theta, best_score, window = _best(thetas, score, allowed, orient.step_deg)
+        option_plans.append(OptionPlan(option.name, option.layout, option.spacing_m, thetas, score,
+                                       allowed, best_theta, best_score, window, values, best_state,
+                                       tuple(s.name for s in option.states), patterns))
+    ranking = _ranking(site, goal_bands, option_plans, ref)
+    return Plan(tuple(goal_bands), tuple(option_plans), ranking, ref, caveats, orient.step_deg, fixed)
+
+
+def _fixed_advantage(weights: np.ndarray, gain_dbi: np.ndarray, theta_deg: float, ref_mean: float
+                     ) -> np.ndarray:
+    g = _rotate(floored(gain_dbi), theta_deg)
+    return np.array([float(np.sum(weights * g) / np.sum(weights)) - ref_mean])
+
+
+def _rotate(gain_frame: np.ndarray, theta_deg: float) -> np.ndarray:
+    """Array-frame gain as a function of true bearing for baseline bearing theta.
+
+    Whole degrees roll exactly; a fractional bearing shifts by the Fourier
+    shift theorem, the same trigonometric interpolation the sweep uses.
+    """
+    if abs(theta_deg - round(theta_deg)) < 1e-9:
+        return np.roll(gain_frame, int(round(theta_deg)) % N_AZIMUTH, axis=1)
+    k = np.arange(N_AZIMUTH // 2 + 1)
+    phase = np.exp(-2j * np.pi * k * theta_deg / N_AZIMUTH)
+    spec0 = np.fft.rfft(gain_frame, axis=1)
+    spec = spec0 * phase
+    if N_AZIMUTH % 2 == 0:  # the Nyquist term shifts as cos(pi theta), as in the sweep
+        spec[:, -1] = spec0[:, -1].real * np.cos(np.pi * theta_deg)
+    return np.fft.irfft(spec, n=N_AZIMUTH, axis=1)
+
+
+def _best(thetas, score, allowed, step_deg):
+    ok = allowed & np.isfinite(score)
+    if not ok.any():
+        return None, None, None
+    masked = np.where(ok, score, -np.inf)
+    i = int(np.argmax(masked))
+    best = float(score[i])
+    if thetas.size == 1:
+        return float(thetas[i]), best, (float(thetas[i]), float(thetas[i]))
+    good = ok & (score >= best - WINDOW_DB)
+    n = thetas.size
+    lo = i
+    while good[(lo - 1) % n] and (lo - 1) % n != i:
+        lo = (lo - 1) % n
+    hi = i
+    while good[(hi + 1) % n] and (hi + 1) % n != lo:
+        hi = (hi + 1) % n
+    return float(thetas[i]), best, (float(thetas[lo]), float(thetas[hi]))
+
+
+def distinct_maxima(thetas: np.ndarray, score: np.ndarray, allowed: np.ndarray,
+                    apart_deg: float = DISTINCT_DEG) -> list[int]:
+    """Indices of local maxima (allowed bearings), best first, at least ``apart_deg`` apart.
+
+    Bearings theta and theta + 180 with the same score are the same ground
+    plan with the elements numbered the other way round (a pair or a line
+    with mirrored states): only the first of them is kept.
+    """
+    n = thetas.size
+    ok = allowed & np.isfinite(score)
+    if not ok.any():
+        return []
+    s = np.where(ok, score, -np.inf)
+    if n == 1:
+        return [0]
+    is_peak = ok & (s >= np.roll(s, 1)) & (s >= np.roll(s, -1))
+    cand = np.flatnonzero(is_peak)
+    cand = cand[np.argsort(-s[cand], kind="stable")]
+    picked: list[int] = []
+    for c in cand:
+        near = False
+        for p in picked:
+            d = abs((thetas[c] - thetas[p] + 180.0) % 360.0 - 180.0)
+            if d < apart_deg:
+                near = True
+                break
+            if abs(180.0 - d) < apart_deg and abs(s[c] - s[p]) < 1e-6:
+                near = True
+                break
+        if not near:
+            picked.append(int(c))
+    return picked
+
+
+def goal_rows(plan_option: OptionPlan, goal_bands, theta_index: int, ref: dict) -> tuple[GoalRow, ...]:
+    rows = []
+    theta = float(plan_option.orientation_deg[theta_index])
+    for i, gb in enumerate(goal_bands):
+        w = gb.needs.weights
+        open_f = float(w.sum())
+        if open_f <= 0 or not np.isfinite(plan_option.values_db[i, theta_index]):
+            rows.append(GoalRow(gb.goal_name, gb.path, gb.band_name, "", None, None, None, None, open_f,
+                                None, None))
+            continue
+        s_idx = int(plan_option.best_state[i, theta_index])
+        s_name = plan_option.state_names[s_idx]
+        g = _rotate(floored(plan_option.patterns[(gb.band_name, s_name)].gain_dbi), theta)
+        mean = float(np.sum(w * g) / open_f)
+        ref_mean = _ref_mean(w, ref[gb.band_name])
+        p10 = weighted_quantile(g, w, 0.10)
+        avoid_adv = None
+        if gb.avoid_needs is not None and gb.avoid_needs.weights.sum() > 0:
+            aw = gb.avoid_needs.weights
+            avoid_adv = float(np.sum(aw * g) / aw.sum()) - _ref_mean(aw, ref[gb.band_name])
+        rows.append(GoalRow(gb.goal_name, gb.path, gb.band_name, s_name, mean, p10, mean - ref_mean,
+                            float(plan_option.values_db[i, theta_index]), open_f, avoid_adv, ref_mean))
+    return tuple(rows)
+
+
+def _ranking(site, goal_bands, option_plans, ref, top: int = 5) -> tuple[RankEntry, ...]:
+    cands = []
+    for op in option_plans:
+        for idx in distinct_maxima(op.orientation_deg, op.score_db, op.allowed):
+            cands.append((float(op.score_db[idx]), op, idx))
+    cands.sort(key=lambda c: -c[0])
+    out = []
+    for score, op, idx in cands[:top]:
+        out.append(RankEntry(op.option, op.layout, op.spacing_m, float(op.orientation_deg[idx]), score,
+                             goal_rows(op, goal_bands, idx, ref)))
+    return tuple(out)
