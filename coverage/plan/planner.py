@@ -31,7 +31,7 @@ from ..propagation.needs import Needs, band_needs, prepare_goal
 from .sweep import correlate, floored, orientations, spectrum, weighted_quantile
 
 __all__ = ["GoalBand", "OptionPlan", "Plan", "RankEntry", "GoalRow", "make_plan", "needs_for_site",
-           "in_allowed", "distinct_maxima"]
+           "in_allowed", "distinct_maxima", "centrally_symmetric", "goal_rows"]
 
 DISTINCT_DEG = 10.0  # ranking: maxima at least this far apart
 WINDOW_DB = 1.0      # orientation sensitivity: bearings within this of the best
@@ -298,13 +298,20 @@ def _best(thetas, score, allowed, step_deg):
     return float(thetas[i]), best, (float(thetas[lo]), float(thetas[hi]))
 
 
+def centrally_symmetric(positions_m) -> bool:
+    """True when turning the layout by 180 deg about its centre gives the same ground plan."""
+    pts = np.asarray(positions_m, dtype=float)
+    turned = 2 * pts.mean(axis=0) - pts
+    return all(np.min(np.hypot(*(pts - q).T)) < 1e-6 for q in turned)
+
+
 def distinct_maxima(thetas: np.ndarray, score: np.ndarray, allowed: np.ndarray,
-                    apart_deg: float = DISTINCT_DEG) -> list[int]:
+                    apart_deg: float = DISTINCT_DEG, half_turn_same: bool = False) -> list[int]:
     """Indices of local maxima (allowed bearings), best first, at least ``apart_deg`` apart.
 
-    Bearings theta and theta + 180 with the same score are the same ground
-    plan with the elements numbered the other way round (a pair or a line
-    with mirrored states): only the first of them is kept.
+    With ``half_turn_same`` (a layout that is its own half turn: pair, line,
+    square), bearings theta and theta + 180 are the same ground plan with the
+    elements numbered the other way round, so they also count as near.
     """
     n = thetas.size
     ok = allowed & np.isfinite(score)
@@ -324,7 +331,7 @@ def distinct_maxima(thetas: np.ndarray, score: np.ndarray, allowed: np.ndarray,
             if d < apart_deg:
                 near = True
                 break
-            if abs(180.0 - d) < apart_deg and abs(s[c] - s[p]) < 1e-6:
+            if half_turn_same and abs(180.0 - d) < apart_deg:
                 near = True
                 break
         if not near:
@@ -359,8 +366,10 @@ def goal_rows(plan_option: OptionPlan, goal_bands, theta_index: int, ref: dict) 
 
 def _ranking(site, goal_bands, option_plans, ref, top: int = 5) -> tuple[RankEntry, ...]:
     cands = []
+    symmetric = {o.name: centrally_symmetric(o.positions_m) for o in site.array.options}
     for op in option_plans:
-        for idx in distinct_maxima(op.orientation_deg, op.score_db, op.allowed):
+        for idx in distinct_maxima(op.orientation_deg, op.score_db, op.allowed,
+                                   half_turn_same=symmetric[op.option]):
             cands.append((float(op.score_db[idx]), op, idx))
     cands.sort(key=lambda c: -c[0])
     out = []

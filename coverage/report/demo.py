@@ -5,10 +5,15 @@ from importlib import resources
 from pathlib import Path
 
 from . import paths as _paths
+from . import plan as _plan
 
-HELP = "run the whole job on the shipped demo site (an invented scenario)"
+HELP = "run the whole job on the shipped demo site (an invented scenario); writes to ./maps"
 
-__all__ = ["HELP", "site_path", "build", "format_text", "write_files"]
+__all__ = ["HELP", "add_arguments", "site_path", "default_out", "build", "format_text", "write_files"]
+
+
+def add_arguments(p) -> None:
+    _plan.add_arguments(p)
 
 
 def site_path(args) -> Path:
@@ -16,15 +21,20 @@ def site_path(args) -> Path:
     return Path(str(ref))
 
 
+def default_out(args) -> str:
+    return "maps"
+
+
 def build(site, args) -> dict:
-    return {"paths": _paths.build(site, args)}
+    return {"paths": _paths.build(site, args), "plan": _plan.build(site, args)}
 
 
 def format_text(result: dict) -> str:
-    return _paths.format_text(result["paths"])
+    return _paths.format_text(result["paths"]) + "\n" + _plan.format_text(result["plan"])
 
 
 def write_files(site, args, result, out_dir) -> list[Path]:
     from ..fileio import atomic_write_json
 
-    return [atomic_write_json(Path(out_dir) / "paths.json", result["paths"])]
+    written = [atomic_write_json(Path(out_dir) / "paths.json", result["paths"])]
+    return written + _plan.write_files(site, args, result["plan"], out_dir)

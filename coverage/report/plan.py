@@ -1,0 +1,164 @@
+"""`lobeplan plan`: ranking, per-goal table, spacing comparison, results files."""
+from __future__ import annotations
+
+import csv
+import functools
+import io
+import math
+from pathlib import Path
+
+from ..safety import CAUTIONS
+
+HELP = "rank baseline bearings and spacings against the goals; per-goal switch states"
+
+__all__ = ["HELP", "add_arguments", "build", "build_from_plan", "format_text", "write_files", "run_plan"]
+
+
+def add_arguments(p) -> None:
+    p.add_argument("--date", default=None, metavar="YYYY-MM-DD",
+                   help="date printed on maps (default: today); results carry none")
+
+
+def _r(x, nd: int = 3):
+    if x is None:
+        return None
+    x = float(x)
+    if not math.isfinite(x):
+        return None
+    return round(x, nd)
+
+
+@functools.lru_cache(maxsize=2)
+def run_plan(site):
+    """The plan of the site (with a progress bar on a terminal), kept for write_files."""
+    from ..plan.planner import make_plan
+
+    progress = _progress()
+    try:
+        return make_plan(site, progress=progress)
+    finally:
+        if progress is not None and hasattr(progress, "close"):
+            progress.close()
+
+
+def _progress():
+    try:
+        from ..progress import ProgressBar  # type: ignore[attr-defined]
+    except ImportError:
+        return None
+    try:
+        return ProgressBar("needs")
+    except TypeError:
+        return None
+
+
+def _goal_row(g) -> dict:
+    return {"goal": g.goal, "path": g.path, "band": g.band, "state": g.state or None,
+            "mean_gain_dbi": _r(g.mean_gain_dbi, 2), "p10_gain_dbi": _r(g.p10_gain_dbi, 2),
+            "advantage_db": _r(g.advantage_db, 2), "value_db": _r(g.value_db, 2),
+            "open_fraction": _r(g.open_fraction, 3), "avoid_advantage_db": _r(g.avoid_advantage_db, 2)}
+
+
+def build_from_plan(site, plan) -> dict:
+    from ..plan.planner import goal_rows
+
+    ranking = [{"option": e.option, "orientation_deg": _r(e.orientation_deg, 1), "spacing_m": _r(e.spacing_m, 3),
+                "layout": e.layout, "score_db": _r(e.score_db, 2),
+                "goals": [_goal_row(g) for g in e.goals]} for e in plan.ranking]
+    comparison = []
+    for op in plan.options:
+        entry = {"option": op.option, "spacing_m": _r(op.spacing_m, 3), "layout": op.layout,
+                 "best_orientation_deg": _r(op.best_orientation_deg, 1), "score_db": _r(op.best_score_db, 2),
+                 "within_1db_deg": [_r(op.window_deg[0], 1), _r(op.window_deg[1], 1)] if op.window_deg else None,
+                 "goals": []}
+        if op.best_orientation_deg is not None:
+            idx = int(list(op.orientation_deg).index(op.best_orientation_deg))
+            entry["goals"] = [_goal_row(g) for g in goal_rows(op, plan.goal_bands, idx, plan.reference_gain_dbi)]
+        comparison.append(entry)
+    scores = [{"option": op.option, "spacing_m": _r(op.spacing_m, 3),
+               "orientation_deg": [_r(t, 2) for t in op.orientation_deg],
+               "score_db": [_r(s, 3) for s in op.score_db],
+               "allowed_orientation_deg": [list(a) for a in site.orientation.allowed_deg]}
+              for op in plan.options]
+    st = site.station
+    return {
+        "station": {"name": st.name, "lat_deg": _r(st.lat_deg, 6), "lon_deg": _r(st.lon_deg, 6),
+                    "locator": st.locator},
+        "model": site.propagation.model,
+        "ranking": ranking,
+        "spacing_comparison": comparison,
+        "orientation_scores": scores,
+        "caveats": list(plan.caveats),
+        "cautions": list(CAUTIONS),
+    }
+
+
+def build(site, args=None) -> dict:
+    return build_from_plan(site, run_plan(site))
+
+
+def _f(x, spec: str = "+6.2f", none: str = "—") -> str:
+    return none.rjust(len(format(0.0, spec))) if x is None else format(x, spec)
+
+
+def format_text(result: dict) -> str:
+    st = result["station"]
+    out = [f"Plan for {st['name']} ({st['locator']}), propagation model: {result['model']}", ""]
+    out.append("Best baseline bearings (score: mean advantage over one vertical, dB)")
+    out.append(f"  {'#':>2}  {'option':<24} {'bearing':>8} {'score':>7}")
+    for i, e in enumerate(result["ranking"], 1):
+        out.append(f"  {i:>2}  {e['option'][:24]:<24} {e['orientation_deg']:>7.1f}° {_f(e['score_db'], '+7.2f')}")
+    if not result["ranking"]:
+        out.append("  (no allowed bearing serves an open goal)")
+    if result["ranking"]:
+        best = result["ranking"][0]
+        out += ["", f"Per goal, {best['option']} with the baseline along {best['orientation_deg']:.1f}°",
+                f"  {'goal':<22} {'path':<5} {'band':<7} {'state':<18} {'mean':>7} {'p10':>7} {'vs one':>7} {'open':>5}",
+                f"  {'':<22} {'':<5} {'':<7} {'':<18} {'dBi':>7} {'dBi':>7} {'dB':>7} {'':>5}"]
+        for g in best["goals"]:
+            out.append(f"  {g['goal'][:22]:<22} {g['path']:<5} {g['band'][:7]:<7} {(g['state'] or 'closed')[:18]:<18}"
+                       f" {_f(g['mean_gain_dbi'], '7.2f')} {_f(g['p10_gain_dbi'], '7.2f')}"
+                       f" {_f(g['advantage_db'], '+7.2f')} {g['open_fraction']:5.2f}")
+    out += ["", "Spacing options side by side"]
+    out.append(f"  {'option':<24} {'spacing':>8} {'best':>7} {'score':>7}  within 1 dB of its best")
+    for c in result["spacing_comparison"]:
+        sp = "—" if c["spacing_m"] is None else f"{c['spacing_m']:.2f} m"
+        win = "—" if not c["within_1db_deg"] else f"{c['within_1db_deg'][0]:.0f}° to {c['within_1db_deg'][1]:.0f}°"
+        best_t = "—" if c["best_orientation_deg"] is None else f"{c['best_orientation_deg']:.1f}°"
+        out.append(f"  {c['option'][:24]:<24} {sp:>8} {best_t:>7} {_f(c['score_db'], '+7.2f')}  {win}")
+    comp = result["spacing_comparison"]
+    if len(comp) > 1 and all(c["goals"] for c in comp):
+        out += ["", "  advantage over one vertical at each option's best bearing, dB"]
+        head = "  " + f"{'goal':<22} {'band':<7}" + "".join(f" {c['option'][:16]:>16}" for c in comp)
+        out.append(head)
+        for rows in zip(*(c["goals"] for c in comp)):
+            g0 = rows[0]
+            label = g0["goal"] + (" (long)" if g0["path"] == "long" else "")
+            out.append("  " + f"{label[:22]:<22} {g0['band'][:7]:<7}"
+                       + "".join(f" {_f(g['advantage_db'], '+16.2f')}" for g in rows))
+    if result["caveats"]:
+        out += ["", "Propagation model notes"]
+        out += [f"  - {c}" for c in result["caveats"]]
+    out += ["", "Cautions"]
+    out += [f"  - {c}" for c in result["cautions"]]
+    return "\n".join(out) + "\n"
+
+
+def _csv(result: dict) -> str:
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(["rank", "option", "layout", "spacing_m", "orientation_deg", "score_db", "goal", "path", "band",
+                "state", "mean_gain_dbi", "p10_gain_dbi", "advantage_db", "open_fraction"])
+    for i, e in enumerate(result["ranking"], 1):
+        for g in e["goals"]:
+            w.writerow([i, e["option"], e["layout"], e["spacing_m"], e["orientation_deg"], e["score_db"], g["goal"],
+                        g["path"], g["band"], g["state"], g["mean_gain_dbi"], g["p10_gain_dbi"], g["advantage_db"],
+                        g["open_fraction"]])
+    return buf.getvalue()
+
+
+def write_files(site, args, result, out_dir) -> list[Path]:
+    from ..fileio import atomic_write_json, atomic_write_text
+
+    out = Path(out_dir)
+    return [atomic_write_json(out / "plan.json", result), atomic_write_text(out / "plan.csv", _csv(result))]
