@@ -44,6 +44,7 @@ __all__ = [
     "emf_dipole_mutual_ohm",
     "emf_monopole_self_ohm",
     "emf_monopole_mutual_ohm",
+    "emf_monopole_input_resistance_ohm",
 ]
 
 C0_M_S = 299_792_458.0
@@ -299,3 +300,33 @@ def emf_monopole_self_ohm(freq_hz: float) -> complex:
 def emf_monopole_mutual_ohm(distance_m, freq_hz: float):
     """Two quarter-wave monopoles over a perfect plane: half the dipole value."""
     return 0.5 * emf_dipole_mutual_ohm(distance_m, freq_hz)
+
+
+def emf_monopole_input_resistance_ohm(height_m, freq_hz: float):
+    """Input resistance of a thin monopole of any height over a perfect plane.
+
+    Radiation resistance of a centre-fed dipole of length l = 2h with a
+    sinusoidal current, referred to the current maximum,
+
+        Rr = eta/(2 pi) {C + ln(kl) - Ci(kl) + 1/2 sin(kl) [Si(2kl) - 2 Si(kl)]
+             + 1/2 cos(kl) [C + ln(kl/2) + Ci(2kl) - 2 Ci(kl)]},
+
+    moved to the feed point by 1/sin^2(kl/2) and halved for the monopole.
+    Not meaningful near l = lambda (the sinusoidal current has a node at the
+    feed there).
+
+    References
+    ----------
+    Balanis, *Antenna Theory*, 3rd ed., sec. 4.5 (radiation resistance of a
+    finite-length dipole; equation number from memory) and sec. 4.5.4
+    (input resistance).
+    """
+    k = 2.0 * math.pi * freq_hz / C0_M_S
+    kl = 2.0 * k * np.asarray(height_m, dtype=float)
+    s1, c1 = sici(kl)
+    s2, c2 = sici(2.0 * kl)
+    g = np.euler_gamma
+    rr = ETA0_OHM / (2.0 * math.pi) * (
+        g + np.log(kl) - c1 + 0.5 * np.sin(kl) * (s2 - 2.0 * s1)
+        + 0.5 * np.cos(kl) * (g + np.log(kl / 2.0) + c2 - 2.0 * c1))
+    return 0.5 * rr / np.sin(kl / 2.0) ** 2
