@@ -1,0 +1,44 @@
+"""Timing of one array pattern (4 elements, one band, one state, 1 x 1 deg grid).
+
+Prints JSON timings in milliseconds. Not a timed test: run it by hand,
+``python benchmarks/pattern.py``. "cold" includes the moment-method solve
+(a fresh frequency every call, so the cache never hits); "warm" reuses it.
+"""
+from __future__ import annotations
+
+import json
+import statistics
+import time
+
+from lobeplan.antenna.layout import layout_positions_m
+from lobeplan.antenna.model import GROUND_CLASSES, ArrayOption, ArraySpec, Feed, State
+from lobeplan.antenna.pattern import array_pattern
+
+
+def main(repeats: int = 30) -> dict:
+    forced = State("diagonal", phase_deg=(0.0, -90.0, -180.0, -90.0))
+    fed = State("lines", line_m=(5.0, 12.1, 19.0, 12.1))
+    option = ArrayOption("square", "square", 10.5, layout_positions_m("square", 10.5), (forced, fed))
+    spec = ArraySpec(10.4, 0.02, GROUND_CLASSES["average"], 2.0, Feed(), (option,))
+    array_pattern(spec, option, forced, 7.0e6)  # first call: imports, caches of constants
+    out = {}
+    for label, state in (("forced", forced), ("fed", fed)):
+        cold, warm = [], []
+        for i in range(repeats):
+            f = 7.1e6 + 7.0 * i + (0.5 if state is fed else 0.0)
+            t0 = time.perf_counter()
+            array_pattern(spec, option, state, f)
+            t1 = time.perf_counter()
+            array_pattern(spec, option, state, f)
+            t2 = time.perf_counter()
+            cold.append((t1 - t0) * 1e3)
+            warm.append((t2 - t1) * 1e3)
+        out[f"{label}_cold_ms_median"] = round(statistics.median(cold), 2)
+        out[f"{label}_cold_ms_max"] = round(max(cold), 2)
+        out[f"{label}_warm_ms_median"] = round(statistics.median(warm), 2)
+    out["budget_ms"] = 50.0
+    return out
+
+
+if __name__ == "__main__":
+    print(json.dumps(main(), indent=2))

@@ -1,0 +1,290 @@
+"""Array patterns in dBi on the planner's angular grid, referred to input power.
+
+The moment method gives the current along every monopole; each piecewise-
+sinusoidal current triangle is integrated in closed form into the far field,
+once as the direct ray and once as the ray reflected by the real ground with
+the Fresnel coefficient for vertical polarization. The horizontal array
+factor places each element at its (along, across) position. Gain is
+4 pi U / P_in, where P_in is the power into the bases (forced currents) or
+into the junction (fed states), so ground loss and line loss lower it.
+
+Frame: azimuth clockwise from the along axis; element 1 at the origin.
+
+References
+----------
+C. A. Balanis, *Antenna Theory*, 3rd ed., sec. 4.7 (vertical elements above
+ground: direct plus reflected ray), sec. 6.2-6.4 (array factor), sec. 2.9
+(gain and radiation intensity).
+J. D. Kraus, *Antennas*, 2nd ed., sec. 12-2 (vertical-polarization
+reflection coefficient).
+"""
+from __future__ import annotations
+
+import functools
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..grid import AZIMUTH_DEG, ELEVATION_DEG
+from .feed import Drive, drive_fed, drive_forced
+from .ground import reflection_vertical
+from .model import ArrayOption, ArraySpec, Ground, State
+from .mom import C0_M_S, ETA0_OHM, CoupledElements, solve_elements
+
+__all__ = [
+    "GAIN_FLOOR_DBI",
+    "RATIO_CAP_DB",
+    "ArrayResult",
+    "array_pattern",
+    "vertical_gain_dbi",
+    "pattern_figures",
+    "coupled_elements",
+    "state_currents",
+    "state_drive",
+    "gain_from_currents_dbi",
+]
+
+GAIN_FLOOR_DBI = -60.0
+RATIO_CAP_DB = 60.0
+
+_SIN_EL = np.sin(np.radians(ELEVATION_DEG))
+_COS_EL = np.cos(np.radians(ELEVATION_DEG))
+_COS_AZ = np.cos(np.radians(AZIMUTH_DEG))
+_SIN_AZ = np.sin(np.radians(AZIMUTH_DEG))
+_COS_EL[-1] = 0.0  # exactly zero at the zenith, where a vertical does not radiate
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class ArrayResult:
+    """Pattern and drive of one (option, state) on one frequency.
+
+    Attributes
+    ----------
+    freq_hz : float
+    option_name, state_name : str
+    gain_dbi : ndarray, shape (91, 360)
+        Gain over the grid of :mod:`lobeplan.grid` in the array frame
+        (azimuth clockwise from the along axis), floored at -60 dBi.
+    base_current_a : ndarray of complex, shape (n_el,)
+        Peak base currents for 1 W total input.
+    feed_impedance_ohm : ndarray of complex, shape (n_el,)
+        Active impedance at each base, ground loss included.
+    element_power_w : ndarray, shape (n_el,)
+        Power each element takes (may be negative), 1 W total input.
+    junction_impedance_ohm : complex or None
+        Fed states only.
+    line_loss_w : float
+        Power lost in the lines per watt of input.
+    ground_loss_w : float
+        Power lost in the base (radial) resistances per watt of input.
+    impedance_matrix_ohm : ndarray of complex, shape (n_el, n_el)
+        Coupled base impedances over the perfect plane, without ground loss.
+    """
+
+    freq_hz: float
+    option_name: str
+    state_name: str
+    gain_dbi: np.ndarray
+    base_current_a: np.ndarray
+    feed_impedance_ohm: np.ndarray
+    element_power_w: np.ndarray
+    junction_impedance_ohm: complex | None
+    line_loss_w: float
+    ground_loss_w: float
+    impedance_matrix_ohm: np.ndarray
+
+
+def coupled_elements(spec: ArraySpec, option: ArrayOption, freq_hz: float) -> CoupledElements:
+    """The moment-method solution for an option on one frequency (cached)."""
+    return solve_elements(spec.height_m, spec.radius_m, option.positions_m, freq_hz)
+
+
+def state_currents(state: State, n_elements: int) -> np.ndarray:
+    """Relative forced base currents of a ``phase_deg`` state, shape (n_el,)."""
+    if state.phase_deg is None:
+        raise ValueError(f"state {state.name!r} has no phase_deg")
+    phase = np.radians(np.asarray(state.phase_deg, dtype=float))
+    amp = np.ones(phase.shape) if state.amplitude is None else np.asarray(state.amplitude, dtype=float)
+    if phase.shape != (n_elements,) or amp.shape != (n_elements,):
+        raise ValueError(f"state {state.name!r}: need one phase and amplitude per element ({n_elements})")
+    return amp * np.exp(1j * phase)
+
+
+def state_drive(spec: ArraySpec, option: ArrayOption, state: State, freq_hz: float,
+                sol: CoupledElements | None = None) -> Drive:
+    """Solve one state's drive (forced or fed) for 1 W input."""
+    if sol is None:
+        sol = coupled_elements(spec, option, freq_hz)
+    n = sol.n_elements
+    z_base = sol.impedance_ohm + spec.ground_loss_ohm * np.eye(n)
+    if state.is_fed:
+        if len(state.line_m) != n:
+            raise ValueError(f"state {state.name!r}: need one line per element ({n})")
+        return drive_fed(z_base, spec.feed, freq_hz, state.line_m)
+    return drive_forced(z_base, state_currents(state, n))
+
+
+@functools.lru_cache(maxsize=128)
+def _vertical_kernel(freq_hz: float, segment_m: float, n_node: int, ground: Ground) -> np.ndarray:
+    """Map node currents -> vertical factor, shape (91, n_node).
+
+    F(psi) = cos(psi) int_0^h I(z) [exp(j k z sin psi) + Rv(psi) exp(-j k z sin psi)] dz,
+    each piecewise-sinusoidal triangle integrated in closed form.
+    """
+    k = 2.0 * math.pi * freq_hz / C0_M_S
+    d = segment_m
+    beta = k * _SIN_EL
+    skd = math.sin(k * d)
+    sp = np.sinc((k + beta) * d / (2 * math.pi))
+    sm = np.sinc((k - beta) * d / (2 * math.pi))
+    full = k * d * d * sp * sm / skd                        # int of a whole triangle * cos(beta u)
+    half_sin = (d * np.cos((k - beta) * d / 2) * sp - d * np.cos((k + beta) * d / 2) * sm) / (2 * skd)
+    z = np.arange(n_node) * d
+    up = np.exp(1j * beta[:, None] * z[None, :]) * full[:, None]
+    down = np.conj(up)
+    up[:, 0] = 0.5 * full + 1j * half_sin                   # the base triangle: upper half only
+    down[:, 0] = 0.5 * full - 1j * half_sin
+    rv = reflection_vertical(ground, freq_hz, ELEVATION_DEG)
+    kern = _COS_EL[:, None] * (up + rv[:, None] * down)
+    kern.flags.writeable = False
+    return kern
+
+
+def gain_from_currents_dbi(sol: CoupledElements, ground: Ground, base_current_a: np.ndarray,
+                           input_power_w: float) -> np.ndarray:
+    """Gain over the grid for given base currents and input power.
+
+    Parameters
+    ----------
+    sol : CoupledElements
+    ground : Ground
+        Far-field ground (the near field is always the perfect plane).
+    base_current_a : ndarray of complex, shape (n_el,)
+    input_power_w : float
+
+    Returns
+    -------
+    ndarray, shape (91, 360)
+        dBi in the array frame, floored at -60 dBi.
+    """
+    k = 2.0 * math.pi * sol.freq_hz / C0_M_S
+    nodes = sol.currents_on_wires(base_current_a)                       # (n_el, n_node)
+    kern = _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size, ground)
+    vert = nodes @ kern.T                                               # (n_el, 91)
+    pos = sol.positions_m
+    proj = pos[:, 0, None] * _COS_AZ[None, :] + pos[:, 1, None] * _SIN_AZ[None, :]  # (n_el, 360)
+    phase = np.exp(1j * k * _COS_EL[None, :, None] * proj[:, None, :])  # (n_el, 91, 360)
+    field = np.einsum("ep,epa->pa", vert, phase)
+    gain = ETA0_OHM * k * k * (field.real ** 2 + field.imag ** 2) / (8.0 * math.pi * input_power_w)
+    floor = 10.0 ** (GAIN_FLOOR_DBI / 10.0)
+    return 10.0 * np.log10(np.maximum(gain, floor))
+
+
+def array_pattern(spec: ArraySpec, option: ArrayOption, state: State, freq_hz: float) -> ArrayResult:
+    """Gain pattern and drive of one switch state of one option on one band.
+
+    Parameters
+    ----------
+    spec : ArraySpec
+    option : ArrayOption
+    state : State
+        Forced currents hold as given on every band; fed states are solved
+        through their lines at ``freq_hz``.
+    freq_hz : float
+
+    Returns
+    -------
+    ArrayResult
+        ``gain_dbi`` has shape (91, 360) in the array frame, referred to the
+        input power (ground loss and line loss included).
+
+    References
+    ----------
+    Balanis, *Antenna Theory*, 3rd ed., sec. 4.7 and 6.2; currents from the
+    moment method of :mod:`lobeplan.antenna.mom`.
+    """
+    sol = coupled_elements(spec, option, freq_hz)
+    drive = state_drive(spec, option, state, freq_hz, sol)
+    i = drive.base_current_a
+    ground_loss = 0.5 * spec.ground_loss_ohm * float(np.sum(np.abs(i) ** 2))
+    gain = gain_from_currents_dbi(sol, spec.ground, i, 1.0)
+    for a in (gain, i, drive.feed_impedance_ohm, drive.element_power_w):
+        a.flags.writeable = False
+    return ArrayResult(freq_hz=float(freq_hz), option_name=option.name, state_name=state.name,
+                       gain_dbi=gain, base_current_a=i, feed_impedance_ohm=drive.feed_impedance_ohm,
+                       element_power_w=drive.element_power_w,
+                       junction_impedance_ohm=drive.junction_impedance_ohm,
+                       line_loss_w=drive.line_loss_w, ground_loss_w=ground_loss,
+                       impedance_matrix_ohm=sol.impedance_ohm)
+
+
+def vertical_gain_dbi(spec: ArraySpec, freq_hz: float) -> np.ndarray:
+    """Elevation pattern of one vertical of the same height, radius and ground.
+
+    Omnidirectional; ground loss in series at its base as for the array.
+
+    Returns
+    -------
+    ndarray, shape (91,)
+        dBi at elevations 0..90 deg, floored at -60 dBi.
+    """
+    sol = solve_elements(spec.height_m, spec.radius_m, ((0.0, 0.0),), freq_hz)
+    r_in = float(sol.impedance_ohm[0, 0].real) + spec.ground_loss_ohm
+    i = np.array([math.sqrt(2.0 / r_in)], dtype=complex)  # 1 W input
+    k = 2.0 * math.pi * freq_hz / C0_M_S
+    kern = _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size, spec.ground)
+    vert = sol.currents_on_wires(i)[0] @ kern.T
+    gain = ETA0_OHM * k * k * np.abs(vert) ** 2 / (8.0 * math.pi)
+    return 10.0 * np.log10(np.maximum(gain, 10.0 ** (GAIN_FLOOR_DBI / 10.0)))
+
+
+def _crossing(row: np.ndarray, start: int, level: float, step: int) -> float | None:
+    """Degrees from ``start`` to where ``row`` first drops below ``level``."""
+    n = row.size
+    prev = row[start]
+    for off in range(1, n):
+        cur = row[(start + step * off) % n]
+        if cur < level:
+            return off - 1 + (prev - level) / (prev - cur)
+        prev = cur
+    return None
+
+
+def pattern_figures(gain_dbi: np.ndarray) -> dict:
+    """Figures of one pattern on the grid (azimuths in the frame of the input).
+
+    Parameters
+    ----------
+    gain_dbi : ndarray, shape (91, 360)
+
+    Returns
+    -------
+    dict
+        ``peak_gain_dbi``, ``peak_azimuth_deg``, ``peak_elevation_deg``;
+        ``front_to_back_db``: peak against the opposite bearing at the peak
+        elevation; ``front_to_rear_db``: peak against the strongest direction
+        of the rear 120 deg (opposite bearing +-60 deg) at the peak elevation;
+        ``beamwidth_deg``: width of the -3 dB azimuth arc around the peak at the
+        peak elevation, None if the row never drops 3 dB (omnidirectional).
+        Ratios are capped at 60 dB.
+    """
+    g = np.asarray(gain_dbi, dtype=float)
+    el, az = np.unravel_index(int(np.argmax(g)), g.shape)
+    row = g[el]
+    peak = float(row[az])
+    n = row.size
+    back = float(row[(az + n // 2) % n])
+    rear_idx = (az + n // 2 + np.arange(-60, 61)) % n
+    rear = float(np.max(row[rear_idx]))
+    left = _crossing(row, az, peak - 3.0, -1)
+    right = _crossing(row, az, peak - 3.0, +1)
+    width = None if left is None or right is None else float(left + right)
+    return {
+        "peak_gain_dbi": peak,
+        "peak_azimuth_deg": float(AZIMUTH_DEG[az]),
+        "peak_elevation_deg": float(ELEVATION_DEG[el]),
+        "front_to_back_db": float(min(peak - back, RATIO_CAP_DB)),
+        "front_to_rear_db": float(min(peak - rear, RATIO_CAP_DB)),
+        "beamwidth_deg": width,
+    }
