@@ -27,6 +27,7 @@ __all__ = [
     "ABSORPTION_HEIGHT_KM",
     "GYROFREQUENCY_MHZ",
     "secant_law_muf",
+    "m3000_muf",
     "open_probability",
     "control_point_distances_km",
     "control_points",
@@ -79,6 +80,49 @@ def secant_law_muf(fo_mhz, ground_range_km, height_km):
     """
     el = elevation_deg(ground_range_km, height_km)
     return np.asarray(fo_mhz, dtype=float) * incidence_secant(el, height_km)
+
+
+def m3000_muf(fo_mhz, m3000f2, ground_range_km, height_km):
+    """F2 MUF of one hop anchored on the M(3000)F2 factor.
+
+    The monthly-median maps give the MUF at 3000 km directly,
+    MUF(3000)F2 = foF2 M(3000)F2 (the definition of the factor). Other hop
+    lengths scale between foF2 at vertical incidence and that value with
+    the curved-Earth secant law at the reflection height:
+
+        MUF(d) = foF2 [1 + (M(3000)F2 - 1) (sec i(d) - 1) / (sec i(3000) - 1)]
+
+    so that a thick, low-M layer is not credited with the plain secant
+    law's larger obliquity. This is the structure of ITU-R P.1240's basic
+    MUF, 1 + (C_d / C_3000)(B - 1), with the distance function C taken from
+    the secant law (our simplification; P.1240's own C_d is a polynomial).
+
+    Parameters
+    ----------
+    fo_mhz : array_like
+        foF2 (MHz).
+    m3000f2 : array_like
+        M(3000)F2 factor.
+    ground_range_km : array_like
+        Hop length (km).
+    height_km : array_like
+        Mirror reflection height (km), e.g. hmF2.
+
+    Returns
+    -------
+    ndarray
+        MUF (MHz).
+
+    References
+    ----------
+    ITU-R P.1240 (basic MUF, from memory); ITU-R P.1239 and URSI Handbook
+    of Ionogram Interpretation (M(3000)F2 = MUF(3000)F2 / foF2); Davies
+    (1990), ch. 6.
+    """
+    sec_d = incidence_secant(elevation_deg(ground_range_km, height_km), height_km)
+    sec_3000 = incidence_secant(elevation_deg(3000.0, height_km), height_km)
+    m = np.asarray(m3000f2, dtype=float)
+    return np.asarray(fo_mhz, dtype=float) * (1.0 + (m - 1.0) * (sec_d - 1.0) / (sec_3000 - 1.0))
 
 
 def open_probability(freq_mhz, median_muf_mhz, decile_factors=F2_DECILE_FACTORS):

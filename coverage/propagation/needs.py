@@ -22,8 +22,9 @@ climatology
     probability is:
 
     - F2: P(day's MUF > f), the MUF being the lowest over the control
-      points of foF2 sec i (secant law with curvature, reflection at hmF2),
-      times P(the E layer does not screen it), the E-layer MUF for the F2
+      points of the M(3000)F2-anchored MUF (:func:`.muf.m3000_muf`: foF2 at
+      vertical incidence, foF2 M(3000)F2 at 3000 km, the curved-Earth
+      secant law with reflection at hmF2 for the shape in between), times P(the E layer does not screen it), the E-layer MUF for the F2
       ray's own angle being foE sec i at the E height (highest over the
       control points);
     - E: P(day's E MUF > f), the E MUF foE sec i at the E height;
@@ -54,7 +55,8 @@ from . import climatology as clim
 from .hops import incidence_secant, min_hops, path_modes
 from .model import PropagationSettings
 from .muf import (E_DECILE_FACTORS, F2_DECILE_FACTORS, absorption_db, absorption_index,
-                  control_point_distances_km, control_points, open_probability, secant_law_muf)
+                  control_point_distances_km, control_points, m3000_muf, open_probability,
+                  secant_law_muf)
 
 __all__ = ["GoalGeometry", "ModeShare", "Needs", "prepare_goal", "band_needs",
            "ABSORPTION_BELOW_HZ", "OPEN_HOUR_FRACTION"]
@@ -315,7 +317,7 @@ def _climatology_modes(geo: GoalGeometry, freq_mhz: float, settings: Propagation
     for j, layer in enumerate(modes.layer):
         hop_km = d / safe_hops[..., j]
         if layer == "F2":
-            muf = np.min(secant_law_muf(fo, hop_km[..., None], hr), axis=-1)
+            muf = np.min(m3000_muf(fo, io.m3000f2, hop_km[..., None], hr), axis=-1)
             reflect = open_probability(freq_mhz, muf, F2_DECILE_FACTORS)
             # E screening: the E layer's MUF for this ray's own angle
             e_muf = np.max(foe * incidence_secant(el[..., j], he)[..., None], axis=-1)
