@@ -70,7 +70,7 @@ def _build_parser(modules: dict[str, object]) -> argparse.ArgumentParser:
 
 
 def _run(args: argparse.Namespace, mod: object) -> int:
-    from .fileio import dumps_json, ensure_dir
+    from .fileio import check_out_dir, dumps_json, ensure_dir
     from .site import load
 
     if hasattr(mod, "site_path"):
@@ -83,13 +83,13 @@ def _run(args: argparse.Namespace, mod: object) -> int:
     if out_dir is None and hasattr(mod, "default_out"):
         out_dir = mod.default_out(args)
     if out_dir is not None:
-        out_dir = ensure_dir(out_dir)  # fail before any work is done
+        check_out_dir(out_dir)  # refuse before any work is done, create nothing yet
     site = load(site_path)
     result = mod.build(site, args)
     text = dumps_json(result) if args.json else mod.format_text(result)
     written = []
     if out_dir is not None and hasattr(mod, "write_files"):
-        written = mod.write_files(site, args, result, out_dir)
+        written = mod.write_files(site, args, result, ensure_dir(out_dir))
     sys.stdout.write(text if text.endswith("\n") else text + "\n")
     if written and not args.json:
         sys.stdout.write("".join(f"wrote {p}\n" for p in written))

@@ -13,8 +13,28 @@ from typing import Any
 
 from .errors import OutputError
 
-__all__ = ["ensure_dir", "atomic_write_bytes", "atomic_write_text", "atomic_write_json",
+__all__ = ["check_out_dir", "ensure_dir", "atomic_write_bytes", "atomic_write_text", "atomic_write_json",
            "atomic_savefig", "dumps_json"]
+
+
+def check_out_dir(path: str | os.PathLike[str]) -> Path:
+    """Check that the output folder exists and is writable, or could be made.
+
+    Nothing is created here, so that a run refused later leaves no trace.
+    """
+    out = Path(path)
+    probe = out
+    while not probe.exists():
+        if probe.parent == probe:
+            break
+        probe = probe.parent
+    if probe.exists() and not probe.is_dir():
+        raise OutputError(f"--out: {out}: cannot be a folder, {probe} is a file")
+    if probe == out and not os.access(out, os.W_OK):
+        raise OutputError(f"--out: {out}: the folder is not writable")
+    if probe != out and not os.access(probe, os.W_OK):
+        raise OutputError(f"--out: {out}: cannot be created, {probe} is not writable")
+    return out
 
 
 def ensure_dir(path: str | os.PathLike[str]) -> Path:

@@ -1,14 +1,33 @@
-"""Site file (TOML) -> frozen dataclasses; all validation lives here."""
+"""Site file (TOML) -> frozen dataclasses; all validation lives here.
+
+Every problem raises :class:`lobeplan.errors.SiteError` naming the file, the
+key path (``goal[2].region``), the value and what is expected. User units
+(MHz, the file's lists) are converted to the core's units here, once.
+"""
 from __future__ import annotations
 
+import difflib
+import math
+import tomllib
 from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
 
-from .antenna.model import ArraySpec
+from .antenna.model import GROUND_CLASSES, ArrayOption, ArraySpec, Feed, Ground, State
+from .errors import SiteError
+from .geo import locator as _locator
 from .geo.station import Station
 from .plan.model import Orientation
 from .propagation.model import PropagationSettings
 
-__all__ = ["Band", "Goal", "Site", "load"]
+__all__ = ["Band", "Goal", "Site", "load", "loads", "MapSettings"]
+
+_REQUIRED = object()
+LAYOUTS = ("single", "pair", "line", "square", "custom")
+PATHS = ("short", "long", "both")
+MODELS = ("geometry", "climatology")
+# PyIRI's magnetic-field coefficients run out after 2030 (issue 4, measured).
+YEAR_RANGE = (1958, 2030)
 
 
 @dataclass(frozen=True, slots=True)
@@ -16,6 +35,10 @@ class Band:
     name: str
     freq_hz: float
     edges_hz: tuple[float, float] | None = None  # for SWR; None: +-1.5 %
+
+    @property
+    def freq_mhz(self) -> float:
+        return self.freq_hz / 1e6
 
 
 @dataclass(frozen=True, slots=True)
@@ -38,6 +61,15 @@ class Goal:
 
 
 @dataclass(frozen=True, slots=True)
+class MapSettings:
+    """How maps and the GeoJSON export are drawn."""
+
+    lobe_peak_km: float = 10000.0   # great-circle length of a lobe at its peak gain
+    lobe_floor_db: float = 20.0     # a lobe shows this many dB below its peak
+    ring_step_km: float = 2500.0
+
+
+@dataclass(frozen=True, slots=True)
 class Site:
     file: str            # path of the site file, for messages
     base_dir: str        # folder relative file: regions resolve against
@@ -47,6 +79,7 @@ class Site:
     bands: tuple[Band, ...]
     goals: tuple[Goal, ...]
     propagation: PropagationSettings
+    map: MapSettings = MapSettings()
 
     def band(self, name: str) -> Band:
         for b in self.bands:
@@ -58,3 +91,556 @@ class Site:
         if goal.bands is None:
             return self.bands
         return tuple(b for b in self.bands if b.name in goal.bands)
+
+
+# --------------------------------------------------------------------------
+
+
+class _Reader:
+    """Typed access to one TOML document with messages that name the key."""
+
+    def __init__(self, file: str) -> None:
+        self.file = file
+
+    def fail(self, key: str, reason: str) -> SiteError:
+        return SiteError(self.file, key, reason)
+
+    def table(self, value: Any, key: str, allowed: tuple[str, ...]) -> dict[str, Any]:
+        if not isinstance(value, dict):
+            raise self.fail(key, f"expected a table, got {_show(value)}")
+        for k in value:
+            if k not in allowed:
+                close = difflib.get_close_matches(k, allowed, n=1, cutoff=0.5)
+                hint = f"; did you mean {close[0]!r}?" if close else f"; expected one of {', '.join(allowed)}"
+                raise self.fail(_join(key, k), f"unknown key {k!r}{hint}")
+        return value
+
+    def tables(self, value: Any, key: str) -> list[dict[str, Any]]:
+        if isinstance(value, dict):
+            value = [value]
+        if not isinstance(value, list) or not all(isinstance(v, dict) for v in value):
+            raise self.fail(key, f"expected an array of tables ([[{key}]]), got {_show(value)}")
+        return value
+
+    def number(self, t: dict, name: str, key: str, default: Any = _REQUIRED, *, lo: float | None = None,
+               hi: float | None = None, lo_open: bool = False, hi_open: bool = False,
+               integer: bool = False, what: str = "") -> Any:
+        k = _join(key, name)
+        if name not in t:
+            if default is _REQUIRED:
+                raise self.fail(k, f"missing; expected {what or 'a number'}")
+            return default
+        return self.check_number(t[name], k, lo=lo, hi=hi, lo_open=lo_open, hi_open=hi_open,
+                                 integer=integer, what=what)
+
+    def check_number(self, v: Any, k: str, *, lo: float | None = None, hi: float | None = None,
+                     lo_open: bool = False, hi_open: bool = False, integer: bool = False,
+                     what: str = "") -> Any:
+        expect = what or _range_text(lo, hi, lo_open, hi_open, integer)
+        if isinstance(v, bool) or not isinstance(v, (int, float)):
+            raise self.fail(k, f"{_show(v)} is not a number; expected {expect}")
+        if integer and not (isinstance(v, int) or (isinstance(v, float) and v.is_integer())):
+            raise self.fail(k, f"{_show(v)} is not a whole number; expected {expect}")
+        if not math.isfinite(v):
+            raise self.fail(k, f"{_show(v)} is not a finite number; expected {expect}")
+        if lo is not None and (v < lo or (lo_open and v == lo)):
+            raise self.fail(k, f"{_show(v)} is out of range; expected {expect}")
+        if hi is not None and (v > hi or (hi_open and v == hi)):
+            raise self.fail(k, f"{_show(v)} is out of range; expected {expect}")
+        return int(v) if integer else float(v)
+
+    def string(self, t: dict, name: str, key: str, default: Any = _REQUIRED,
+               choices: tuple[str, ...] | None = None) -> Any:
+        k = _join(key, name)
+        if name not in t:
+            if default is _REQUIRED:
+                raise self.fail(k, "missing; expected " + (f"one of {', '.join(choices)}" if choices else "a string"))
+            return default
+        v = t[name]
+        if not isinstance(v, str) or (not v.strip()):
+            raise self.fail(k, f"{_show(v)} is not a non-empty string")
+        if choices is not None and v not in choices:
+            close = difflib.get_close_matches(v, choices, n=1, cutoff=0.5)
+            hint = f"; did you mean {close[0]!r}?" if close else ""
+            raise self.fail(k, f"{v!r} is not one of {', '.join(choices)}{hint}")
+        return v
+
+    def number_list(self, t: dict, name: str, key: str, default: Any = _REQUIRED, *, length: int | None = None,
+                    **limits: Any) -> Any:
+        k = _join(key, name)
+        if name not in t:
+            if default is _REQUIRED:
+                raise self.fail(k, "missing; expected a list of numbers")
+            return default
+        v = t[name]
+        if not isinstance(v, list) or not v:
+            raise self.fail(k, f"{_show(v)} is not a non-empty list of numbers")
+        if length is not None and len(v) != length:
+            raise self.fail(k, f"has {len(v)} values; expected {length}")
+        return tuple(self.check_number(x, f"{k}[{i + 1}]", **limits) for i, x in enumerate(v))
+
+
+def _join(key: str, name: str) -> str:
+    return f"{key}.{name}" if key else name
+
+
+def _show(v: Any) -> str:
+    if isinstance(v, str):
+        return repr(v)
+    if isinstance(v, dict):
+        return "a table"
+    if isinstance(v, list):
+        return "a list"
+    if isinstance(v, bool):
+        return "true" if v else "false"
+    if isinstance(v, float) and not math.isfinite(v):
+        return "nan" if math.isnan(v) else ("inf" if v > 0 else "-inf")
+    return repr(v)
+
+
+def _range_text(lo, hi, lo_open, hi_open, integer) -> str:
+    kind = "a whole number" if integer else "a number"
+    if lo is not None and hi is not None:
+        return f"{kind} {'>' if lo_open else '>='} {lo:g} and {'<' if hi_open else '<='} {hi:g}"
+    if lo is not None:
+        return f"{kind} {'>' if lo_open else '>='} {lo:g}"
+    if hi is not None:
+        return f"{kind} {'<' if hi_open else '<='} {hi:g}"
+    return kind
+
+
+# --------------------------------------------------------------------------
+
+
+def load(path: str | Path) -> Site:
+    """Read and validate a site file."""
+    p = Path(path)
+    file = str(path)
+    try:
+        raw = p.read_bytes()
+    except FileNotFoundError:
+        raise SiteError(file, "", "no such file") from None
+    except IsADirectoryError:
+        raise SiteError(file, "", "is a folder, expected a TOML site file") from None
+    except OSError as exc:
+        raise SiteError(file, "", f"cannot be read ({exc.strerror or exc})") from None
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError:
+        raise SiteError(file, "", "is not UTF-8 text; expected a TOML site file") from None
+    return loads(text, file=file, base_dir=str(p.resolve().parent))
+
+
+_TOP = ("station", "array", "feed", "band", "goal", "propagation", "map")
+_STATION = ("name", "locator", "lat", "lon")
+_ARRAY = ("height_m", "radius_m", "layout", "spacing_m", "elements", "positions_m", "orientation_deg",
+          "orientation_step_deg", "allowed_orientation_deg", "ground", "ground_loss_ohm", "state", "option")
+_OPTION = ("name", "layout", "spacing_m", "elements", "positions_m", "state")
+_STATE = ("name", "phase_deg", "amplitude", "line_m")
+_FEED = ("z0_ohm", "velocity_factor", "loss_db_per_100m_at_10mhz")
+_BAND = ("name", "freq_mhz", "edges_mhz")
+_GOAL = ("name", "region", "weight", "bands", "path", "clip", "avoid", "avoid_weight")
+_PROP = ("model", "month", "year", "solar_flux", "sunspot_number", "hours_utc", "min_elevation_deg",
+         "points_per_goal", "f2_height_km", "e_height_km", "seed")
+_MAP = ("lobe_peak_km", "lobe_floor_db", "ring_step_km")
+
+
+def loads(text: str, file: str = "<site>", base_dir: str = ".") -> Site:
+    """Validate a site file given as text (``file`` names it in messages)."""
+    if "\x00" in text:
+        raise SiteError(file, "", "holds binary data; expected a TOML site file")
+    if not text.strip():
+        raise SiteError(file, "", "is empty; expected a TOML site file with [station], [array], "
+                        "[[band]] and [[goal]]")
+    try:
+        doc = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise SiteError(file, "", f"TOML syntax error: {exc}") from None
+    r = _Reader(file)
+    r.table(doc, "", _TOP)
+    for section in ("station", "array", "band", "goal"):
+        if section not in doc:
+            raise r.fail(section, "missing; a site file needs [station], [array], [[band]] and [[goal]]")
+    station = _station(r, doc["station"])
+    array, orientation = _array(r, doc["array"], doc.get("feed", {}))
+    bands = _bands(r, doc["band"])
+    goals = _goals(r, doc["goal"], bands)
+    prop = _propagation(r, doc.get("propagation", {}))
+    map_settings = _map(r, doc.get("map", {}))
+    return Site(file, base_dir, station, array, orientation, bands, goals, prop, map_settings)
+
+
+def _station(r: _Reader, t: Any) -> Station:
+    t = r.table(t, "station", _STATION)
+    name = r.string(t, "name", "station", default="station")
+    has_loc = "locator" in t
+    has_ll = "lat" in t or "lon" in t
+    if has_loc and has_ll:
+        raise r.fail("station", "give either locator or lat/lon, not both")
+    if has_loc:
+        loc = r.string(t, "locator", "station")
+        try:
+            lat, lon = _locator.locator_to_latlon(loc)
+        except ValueError:
+            raise r.fail("station.locator", f"{loc!r} is not a Maidenhead locator; expected 2, 4, 6 or 8 "
+                         "characters such as 'IN93' or 'IN93nk'") from None
+        return Station(name, lat, lon, loc[:4].upper() + loc[4:6].lower() + loc[6:])
+    if not has_ll:
+        raise r.fail("station", "no position; give locator = \"AB12cd\" or lat and lon in degrees")
+    lat = r.number(t, "lat", "station", lo=-90.0, hi=90.0, what="a latitude in degrees, -90 to 90")
+    lon = r.number(t, "lon", "station", lo=-180.0, hi=180.0, what="a longitude in degrees, -180 to 180")
+    return Station(name, lat, lon, _locator.latlon_to_locator(lat, lon, 6))
+
+
+def _ground(r: _Reader, v: Any) -> Ground:
+    key = "array.ground"
+    if isinstance(v, str):
+        if v not in GROUND_CLASSES:
+            names = tuple(GROUND_CLASSES)
+            close = difflib.get_close_matches(v, names, n=1, cutoff=0.5)
+            hint = f"; did you mean {close[0]!r}?" if close else ""
+            raise r.fail(key, f"unknown ground class {v!r}{hint}; expected one of {', '.join(names)} "
+                         "or {eps_r = ..., sigma_s_m = ...}")
+        return GROUND_CLASSES[v]
+    t = r.table(v, key, ("eps_r", "sigma_s_m"))
+    eps = r.number(t, "eps_r", key, lo=1.0, hi=100.0, what="a relative permittivity from 1 to 100")
+    sig = r.number(t, "sigma_s_m", key, lo=0.0, hi=10.0, what="a conductivity in S/m from 0 to 10")
+    return Ground(f"eps_r {eps:g}, {sig:g} S/m", eps, sig)
+
+
+def _positions(r: _Reader, t: dict, key: str, layout: str, spacing: float | None) -> tuple:
+    if layout == "single":
+        return ((0.0, 0.0),)
+    if layout == "custom":
+        k = _join(key, "positions_m")
+        if "positions_m" not in t:
+            raise r.fail(k, "missing; a custom layout needs positions_m = [[along, across], ...] in metres")
+        v = t["positions_m"]
+        if not isinstance(v, list) or len(v) < 1:
+            raise r.fail(k, f"{_show(v)} is not a list of [along, across] pairs")
+        pts = []
+        for i, p in enumerate(v):
+            if not isinstance(p, list) or len(p) != 2:
+                raise r.fail(f"{k}[{i + 1}]", f"{_show(p)} is not an [along, across] pair in metres")
+            pts.append(tuple(r.check_number(x, f"{k}[{i + 1}]", lo=-1000.0, hi=1000.0) for x in p))
+        for i in range(len(pts)):
+            for j in range(i):
+                if math.dist(pts[i], pts[j]) < 0.05:
+                    raise r.fail(k, f"elements {j + 1} and {i + 1} stand at the same place")
+        return tuple(pts)
+    assert spacing is not None
+    if layout == "pair":
+        return ((0.0, 0.0), (spacing, 0.0))
+    if layout == "square":
+        return ((0.0, 0.0), (spacing, 0.0), (spacing, spacing), (0.0, spacing))
+    n = r.number(t, "elements", key, lo=2, hi=16, integer=True, what="a whole number of elements from 2 to 16")
+    return tuple((i * spacing, 0.0) for i in range(n))
+
+
+def _states(r: _Reader, v: Any, key: str, n: int) -> tuple[State, ...]:
+    states = []
+    names = set()
+    for i, t in enumerate(r.tables(v, key)):
+        k = f"{key}[{i + 1}]"
+        r.table(t, k, _STATE)
+        name = r.string(t, "name", k, default=f"state {i + 1}")
+        if name in names:
+            raise r.fail(_join(k, "name"), f"{name!r} is used twice; state names must differ")
+        names.add(name)
+        has_phase = "phase_deg" in t or "amplitude" in t
+        if has_phase == ("line_m" in t):
+            raise r.fail(k, "give either phase_deg (with optional amplitude) or line_m, exactly one")
+        if "line_m" in t:
+            lines = r.number_list(t, "line_m", k, length=n, lo=0.0, hi=1000.0,
+                                  what="a line length in metres from 0 to 1000")
+            states.append(State(name, line_m=lines))
+            continue
+        phase = r.number_list(t, "phase_deg", k, default=tuple(0.0 for _ in range(n)), length=n,
+                              lo=-720.0, hi=720.0, what="a phase in degrees from -720 to 720")
+        amp = r.number_list(t, "amplitude", k, default=tuple(1.0 for _ in range(n)), length=n,
+                            lo=0.0, hi=100.0, what="a relative amplitude from 0 to 100")
+        if not any(a > 0 for a in amp):
+            raise r.fail(_join(k, "amplitude"), "all amplitudes are zero; at least one element must be driven")
+        states.append(State(name, phase_deg=phase, amplitude=amp))
+    if not states:
+        raise r.fail(key, "no states; give at least one [[array.state]] switch position")
+    return tuple(states)
+
+
+def _spacings(r: _Reader, t: dict, key: str) -> tuple[float, ...]:
+    k = _join(key, "spacing_m")
+    if "spacing_m" not in t:
+        raise r.fail(k, "missing; expected a spacing in metres or a list of options")
+    v = t["spacing_m"]
+    values = v if isinstance(v, list) else [v]
+    if not values:
+        raise r.fail(k, "is an empty list; expected a spacing in metres or a list of options")
+    return tuple(r.check_number(x, k if not isinstance(v, list) else f"{k}[{i + 1}]", lo=0.0, hi=1000.0,
+                                lo_open=True, what="a spacing in metres, more than 0 and up to 1000")
+                 for i, x in enumerate(values))
+
+
+def _option_name(layout: str, spacing: float | None, n: int) -> str:
+    if spacing is None:
+        return layout if layout == "single" else f"{layout} ({n} elements)"
+    return f"{layout} {spacing:g} m"
+
+
+def _array(r: _Reader, t: Any, feed_t: Any) -> tuple[ArraySpec, Orientation]:
+    key = "array"
+    t = r.table(t, key, _ARRAY)
+    height = r.number(t, "height_m", key, lo=0.0, hi=100.0, lo_open=True,
+                      what="an element height in metres, more than 0 and up to 100")
+    radius = r.number(t, "radius_m", key, default=0.02, lo=0.0, hi=0.5, lo_open=True,
+                      what="an element radius in metres, more than 0 and up to 0.5")
+    if radius * 20 > height:
+        raise r.fail("array.radius_m", f"{radius:g} m is too fat for a {height:g} m element; "
+                     "expected radius_m under a twentieth of height_m")
+    ground = _ground(r, t.get("ground", "average"))
+    loss = r.number(t, "ground_loss_ohm", key, default=2.0, lo=0.0, hi=1000.0,
+                    what="a series ground-loss resistance in ohm, 0 to 1000")
+    options: list[ArrayOption] = []
+    if "option" in t:
+        for name in ("layout", "spacing_m", "elements", "positions_m", "state"):
+            if name in t:
+                raise r.fail(_join(key, name), "give it inside each [[array.option]] block, "
+                             "not beside them")
+        for i, ot in enumerate(r.tables(t["option"], "array.option")):
+            k = f"array.option[{i + 1}]"
+            r.table(ot, k, _OPTION)
+            layout = r.string(ot, "layout", k, default="pair", choices=LAYOUTS)
+            spacing = None if layout in ("single", "custom") else _spacings(r, ot, k)
+            if spacing is not None and len(spacing) != 1:
+                raise r.fail(_join(k, "spacing_m"), "one spacing per option block; expected a number")
+            sp = spacing[0] if spacing else None
+            pos = _positions(r, ot, k, layout, sp)
+            states = _option_states(r, ot, k, len(pos))
+            name = r.string(ot, "name", k, default=_option_name(layout, sp, len(pos)))
+            options.append(ArrayOption(name, layout, sp, pos, states))
+    else:
+        layout = r.string(t, "layout", key, default="pair", choices=LAYOUTS)
+        spacings: tuple[float | None, ...] = (None,) if layout in ("single", "custom") else _spacings(r, t, key)
+        for sp in spacings:
+            pos = _positions(r, t, key, layout, sp)
+            states = _option_states(r, t, key, len(pos))
+            options.append(ArrayOption(_option_name(layout, sp, len(pos)), layout, sp, pos, states))
+    names = [o.name for o in options]
+    if len(set(names)) != len(names):
+        raise r.fail("array.option", "two options share a name; option names must differ")
+    feed = _feed(r, feed_t)
+    orientation = _orientation(r, t)
+    return ArraySpec(height, radius, ground, loss, feed, tuple(options)), orientation
+
+
+def _option_states(r: _Reader, t: dict, key: str, n: int) -> tuple[State, ...]:
+    if "state" not in t:
+        if n == 1:
+            return (State("single", phase_deg=(0.0,), amplitude=(1.0,)),)
+        raise r.fail(_join(key, "state"), "no states; give at least one [[array.state]] switch position "
+                     "with phase_deg or line_m")
+    return _states(r, t["state"], _join(key, "state"), n)
+
+
+def _orientation(r: _Reader, t: dict) -> Orientation:
+    key = "array"
+    v = t.get("orientation_deg", "sweep")
+    fixed = None
+    if v != "sweep":
+        if isinstance(v, str):
+            raise r.fail("array.orientation_deg", f"{v!r}: expected a bearing in degrees or \"sweep\"")
+        fixed = r.check_number(v, "array.orientation_deg", lo=0.0, hi=360.0, hi_open=True,
+                               what="a bearing from 0 to under 360 deg, or \"sweep\"") 
+    step = r.number(t, "orientation_step_deg", key, default=1.0, lo=0.1, hi=30.0,
+                    what="a step from 0.1 to 30 deg that divides 360")
+    if abs(360.0 / step - round(360.0 / step)) > 1e-9:
+        raise r.fail("array.orientation_step_deg", f"{step:g} does not divide 360; try 0.5, 1, 2 or 5")
+    allowed = []
+    k = "array.allowed_orientation_deg"
+    if "allowed_orientation_deg" in t:
+        v = t["allowed_orientation_deg"]
+        if not isinstance(v, list) or not v:
+            raise r.fail(k, f"{_show(v)}: expected a list of [from, to] bearing ranges, e.g. [[20, 80]]")
+        if all(not isinstance(x, list) for x in v) and len(v) == 2:
+            v = [v]
+        for i, pair in enumerate(v):
+            if not isinstance(pair, list) or len(pair) != 2:
+                raise r.fail(f"{k}[{i + 1}]", f"{_show(pair)} is not a [from, to] range of bearings")
+            lo, hi = (r.check_number(x, f"{k}[{i + 1}]", lo=0.0, hi=360.0,
+                                     what="a bearing from 0 to 360 deg") for x in pair)
+            allowed.append((lo, hi))
+    if fixed is not None and allowed and not any(_in_range(fixed, a, b) for a, b in allowed):
+        raise r.fail("array.orientation_deg", f"{fixed:g} deg lies outside allowed_orientation_deg")
+    return Orientation(fixed, step, tuple(allowed))
+
+
+def _in_range(bearing: float, lo: float, hi: float) -> bool:
+    span = (hi - lo) % 360.0
+    if span == 0.0 and hi != lo:
+        return True
+    return (bearing - lo) % 360.0 <= span
+
+
+def _feed(r: _Reader, t: Any) -> Feed:
+    key = "feed"
+    t = r.table(t, key, _FEED)
+    return Feed(
+        z0_ohm=r.number(t, "z0_ohm", key, default=50.0, lo=1.0, hi=1000.0,
+                        what="a characteristic impedance in ohm, 1 to 1000"),
+        velocity_factor=r.number(t, "velocity_factor", key, default=0.66, lo=0.0, hi=1.0, lo_open=True,
+                                 what="a velocity factor more than 0 and at most 1"),
+        loss_db_per_100m_at_10mhz=r.number(t, "loss_db_per_100m_at_10mhz", key, default=1.7, lo=0.0,
+                                           hi=100.0, what="a matched loss in dB per 100 m, 0 to 100"),
+    )
+
+
+def _bands(r: _Reader, v: Any) -> tuple[Band, ...]:
+    out = []
+    for i, t in enumerate(r.tables(v, "band")):
+        k = f"band[{i + 1}]"
+        r.table(t, k, _BAND)
+        f = r.number(t, "freq_mhz", k, lo=0.1, hi=60.0, what="a frequency in MHz from 0.1 to 60")
+        name = r.string(t, "name", k, default=f"{f:g} MHz")
+        edges = None
+        if "edges_mhz" in t:
+            lo, hi = r.number_list(t, "edges_mhz", k, length=2, lo=0.1, hi=60.0)
+            if not lo < f < hi:
+                raise r.fail(_join(k, "edges_mhz"), f"[{lo:g}, {hi:g}] must hold freq_mhz {f:g} "
+                             "strictly inside; expected [low, high] in MHz")
+            edges = (lo * 1e6, hi * 1e6)
+        if any(b.name == name for b in out):
+            raise r.fail(_join(k, "name"), f"{name!r} is used twice; band names must differ")
+        out.append(Band(name, f * 1e6, edges))
+    if not out:
+        raise r.fail("band", "no bands; give at least one [[band]] with freq_mhz")
+    return tuple(out)
+
+
+def _region_check(r: _Reader, text: Any, key: str) -> str:
+    from .geo.regions import RegionError, parse_region
+
+    if not isinstance(text, str):
+        raise r.fail(key, f"{_show(text)} is not a region string such as \"continent:Europe\"")
+    try:
+        parse_region(text)
+    except RegionError as exc:
+        raise r.fail(key, str(exc)) from None
+    return text
+
+
+def _goals(r: _Reader, v: Any, bands: tuple[Band, ...]) -> tuple[Goal, ...]:
+    out = []
+    band_names = tuple(b.name for b in bands)
+    tables = r.tables(v, "goal")
+    if not tables:
+        raise r.fail("goal", "no goals; give at least one [[goal]] with a region")
+    for i, t in enumerate(tables):
+        k = f"goal[{i + 1}]"
+        r.table(t, k, _GOAL)
+        if "region" not in t:
+            raise r.fail(_join(k, "region"), "missing; expected e.g. \"continent:Europe\" or \"country:BRA\"")
+        region = _region_check(r, t["region"], _join(k, "region"))
+        name = r.string(t, "name", k, default=region)
+        weight = r.number(t, "weight", k, default=1.0, lo=0.0, hi=1000.0,
+                          what="a goal weight from 0 to 1000")
+        goal_bands = None
+        if "bands" in t:
+            bv = t["bands"]
+            if not isinstance(bv, list) or not bv or not all(isinstance(b, str) for b in bv):
+                raise r.fail(_join(k, "bands"), f"{_show(bv)} is not a list of band names")
+            for j, b in enumerate(bv):
+                if b not in band_names:
+                    close = difflib.get_close_matches(b, band_names, n=1, cutoff=0.5)
+                    hint = f"; did you mean {close[0]!r}?" if close else ""
+                    raise r.fail(f"{k}.bands[{j + 1}]", f"{b!r} is not a band of this site{hint}; "
+                                 f"the bands are {', '.join(repr(n) for n in band_names)}")
+            goal_bands = tuple(dict.fromkeys(bv))
+        path = r.string(t, "path", k, default="short", choices=PATHS)
+        clip = None
+        if "clip" in t:
+            w, s, e, n = r.number_list(t, "clip", k, length=4, lo=-180.0, hi=180.0,
+                                       what="degrees; clip = [west, south, east, north]")
+            if not (-90.0 <= s < n <= 90.0):
+                raise r.fail(_join(k, "clip"), f"south {s:g} and north {n:g} must satisfy "
+                             "-90 <= south < north <= 90")
+            if w == e:
+                raise r.fail(_join(k, "clip"), "west and east are equal; the box is empty")
+            clip = (w, s, e, n)
+        avoid: tuple[str, ...] = ()
+        if "avoid" in t:
+            av = t["avoid"]
+            if isinstance(av, str):
+                av = [av]
+            if not isinstance(av, list) or not av:
+                raise r.fail(_join(k, "avoid"), f"{_show(av)} is not a list of region strings")
+            avoid = tuple(_region_check(r, a, f"{k}.avoid[{j + 1}]") for j, a in enumerate(av))
+        avoid_weight = r.number(t, "avoid_weight", k, default=1.0, lo=0.0, hi=100.0,
+                                what="an avoid weight from 0 to 100")
+        for p in (("short", "long") if path == "both" else (path,)):
+            out.append(Goal(name, region, weight, goal_bands, p, clip, avoid, avoid_weight, k))
+    if sum(g.weight for g in out) <= 0.0:
+        raise r.fail("goal", "every goal weight is zero; at least one goal needs a weight above 0")
+    return tuple(out)
+
+
+def _propagation(r: _Reader, t: Any) -> PropagationSettings:
+    key = "propagation"
+    t = r.table(t, key, _PROP)
+    model = r.string(t, "model", key, default="geometry", choices=MODELS)
+    if "solar_flux" in t and "sunspot_number" in t:
+        raise r.fail(key, "give either solar_flux or sunspot_number, not both")
+    flux = r.number(t, "solar_flux", key, default=None, lo=50.0, hi=400.0,
+                    what="a 12-month mean F10.7 from 50 to 400 sfu")
+    ssn = r.number(t, "sunspot_number", key, default=None, lo=0.0, hi=400.0,
+                   what="a 12-month smoothed sunspot number from 0 to 400")
+    if model == "climatology" and flux is None and ssn is None:
+        raise r.fail(key, "the climatology model needs solar_flux (12-month mean F10.7) or sunspot_number")
+    hours = ((0, 24),)
+    if "hours_utc" in t:
+        hv = t["hours_utc"]
+        if isinstance(hv, list) and len(hv) == 2 and all(not isinstance(x, list) for x in hv):
+            hv = [hv]
+        if not isinstance(hv, list) or not hv:
+            raise r.fail("propagation.hours_utc", f"{_show(hv)}: expected [[start, end], ...] in whole UT hours")
+        ranges = []
+        for i, pair in enumerate(hv):
+            kk = f"propagation.hours_utc[{i + 1}]"
+            if not isinstance(pair, list) or len(pair) != 2:
+                raise r.fail(kk, f"{_show(pair)} is not a [start, end) pair of UT hours")
+            a, b = (r.check_number(x, kk, lo=0, hi=24, integer=True, what="a whole UT hour from 0 to 24")
+                    for x in pair)
+            if a == b:
+                raise r.fail(kk, f"[{a}, {b}) is empty; expected start != end (ranges may wrap midnight)")
+            ranges.append((a, b))
+        hours = tuple(ranges)
+    return PropagationSettings(
+        model=model,
+        month=r.number(t, "month", key, default=1, lo=1, hi=12, integer=True, what="a month from 1 to 12"),
+        year=r.number(t, "year", key, default=2026, lo=YEAR_RANGE[0], hi=YEAR_RANGE[1], integer=True,
+                      what=f"a year from {YEAR_RANGE[0]} to {YEAR_RANGE[1]} (the climatology's range)"),
+        solar_flux=flux,
+        sunspot_number=ssn,
+        hours_utc=hours,
+        min_elevation_deg=r.number(t, "min_elevation_deg", key, default=3.0, lo=0.0, hi=45.0,
+                                   what="an elevation from 0 to 45 deg"),
+        points_per_goal=r.number(t, "points_per_goal", key, default=500, lo=10, hi=20000, integer=True,
+                                 what="a whole number of points from 10 to 20000"),
+        f2_height_km=r.number(t, "f2_height_km", key, default=300.0, lo=150.0, hi=600.0,
+                              what="a height from 150 to 600 km"),
+        e_height_km=r.number(t, "e_height_km", key, default=110.0, lo=80.0, hi=150.0,
+                             what="a height from 80 to 150 km"),
+        seed=r.number(t, "seed", key, default=1, lo=0, hi=2**31 - 1, integer=True,
+                      what="a whole number seed, 0 or more"),
+    )
+
+
+def _map(r: _Reader, t: Any) -> MapSettings:
+    key = "map"
+    t = r.table(t, key, _MAP)
+    return MapSettings(
+        lobe_peak_km=r.number(t, "lobe_peak_km", key, default=10000.0, lo=100.0, hi=20000.0,
+                              what="a length from 100 to 20000 km"),
+        lobe_floor_db=r.number(t, "lobe_floor_db", key, default=20.0, lo=3.0, hi=60.0,
+                               what="a floor from 3 to 60 dB below the peak"),
+        ring_step_km=r.number(t, "ring_step_km", key, default=2500.0, lo=250.0, hi=10000.0,
+                              what="a ring step from 250 to 10000 km"),
+    )

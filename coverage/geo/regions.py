@@ -1,0 +1,601 @@
+"""Goal regions on the real Earth, and points sampled uniformly by area.
+
+Region strings (the ``region`` and ``avoid`` keys of a site file):
+
+- ``country:NAME`` -- a Natural Earth admin-0 country by name (``NAME``,
+  ``NAME_LONG`` or ``ADMIN``, case-insensitive) or ISO 3166 alpha-3 code.
+- ``continent:NAME`` -- Europe, Asia, Africa, North America, South America,
+  Oceania or Antarctica, built from where each polygon part lies (below).
+- ``circle:LAT,LON,RADIUS_KM`` -- a geodesic circle.
+- ``sector:FROM_DEG,TO_DEG,MIN_KM,MAX_KM`` -- bearings clockwise from FROM to
+  TO and distances between MIN and MAX, both from the station.
+- ``file:PATH`` -- every polygon of any vector file geopandas reads
+  (relative paths are taken from the site file's folder).
+
+Continents are built part by part. Each polygon part takes its country's
+Natural Earth ``CONTINENT`` label, with these rules:
+
+1. Russia is split at 60 deg E: the part of it from 0 to 60 deg E is
+   Europe, the rest (including the piece across the antimeridian) Asia.
+2. A part more than 2000 km from its country's largest part (its home part),
+   and nearer to the home part of a country with another label, takes that
+   label. So French Guiana is South America, the Indonesian half of New
+   Guinea is Oceania; Hawaii stays North America (no other home part is
+   nearer), and Svalbard stays Europe (it is within 2000 km of Norway).
+3. A country labelled "Seven seas (open ocean)" takes the label of the
+   nearest home part of any other country.
+
+Egypt (Sinai), Turkey (Anatolia and Thrace) and Kazakhstan are not cut:
+each part follows its country's label.
+"""
+from __future__ import annotations
+
+import difflib
+import functools
+import os
+import re
+from dataclasses import dataclass
+from importlib import resources
+from pathlib import Path
+
+import numpy as np
+import shapely
+import shapely.affinity
+from shapely.geometry import MultiPolygon, Polygon, box
+from shapely.geometry.base import BaseGeometry
+
+from .paths import GEOD
+from .station import Station
+
+__all__ = ["CONTINENTS", "RegionError", "Region", "Disc", "GoalArea", "parse_region", "resolve", "sample_points",
+           "countries", "continent_geometry", "country_names",
+           "region_area", "region_points", "goal_area", "goal_points"]
+
+CONTINENTS = ("Africa", "Antarctica", "Asia", "Europe", "North America", "Oceania", "South America")
+_KINDS = ("country", "continent", "circle", "sector", "file")
+_FAR_FROM_HOME_KM = 2000.0
+_RUSSIA_SPLIT_LON_DEG = 60.0
+
+
+class RegionError(ValueError):
+    """A region string cannot be resolved; ``str()`` says why and what is expected."""
+
+
+@dataclass(frozen=True, slots=True)
+class Region:
+    """A parsed region string: its kind and its arguments (not yet resolved)."""
+
+    kind: str
+    text: str
+    name: str = ""                      # country / continent / file
+    numbers: tuple[float, ...] = ()     # circle / sector
+
+
+# --------------------------------------------------------------------------
+# Shipped countries and the continents built from them
+
+
+@functools.lru_cache(maxsize=1)
+def countries():
+    """The shipped Natural Earth 1:110m admin-0 countries (GeoDataFrame)."""
+    import geopandas as gpd
+
+    ref = resources.files("lobeplan.data").joinpath("countries_110m.geojson")
+    with resources.as_file(ref) as path:
+        return gpd.read_file(path)
+
+
+@functools.lru_cache(maxsize=1)
+def _country_index() -> dict[str, int]:
+    """Lower-case name or code -> row of the country table."""
+    table = countries()
+    index: dict[str, int] = {}
+    for col in ("ADM0_A3", "ISO_A3_EH", "NAME", "NAME_LONG", "ADMIN"):
+        for row, value in enumerate(table[col]):
+            key = str(value).strip().lower()
+            if key and key != "-99":
+                index.setdefault(key, row)
+    return index
+
+
+def country_names() -> list[str]:
+    return sorted(str(n) for n in countries()["NAME"])
+
+
+def _parts(geom: BaseGeometry) -> list[Polygon]:
+    if geom is None or geom.is_empty:
+        return []
+    if isinstance(geom, Polygon):
+        return [geom]
+    return [g for g in getattr(geom, "geoms", []) if isinstance(g, Polygon) and not g.is_empty]
+
+
+_SPHERE_RADIUS_M = 6371008.8  # IUGG mean radius: areas only share points out
+
+
+def _area_m2(geom: BaseGeometry) -> float:
+    """Area on the sphere of a polygon whose edges are straight in lon/lat.
+
+    Region polygons are lon/lat shapes (``contains_xy`` tests them so), so
+    their area is that of the shape in the cylindrical equal-area plane
+    (lon in radians, sin lat), after densifying edges to 0.5 deg. A geodesic
+    area would be wrong for long edges such as a cut along a pole.
+    """
+    dense = shapely.segmentize(geom, 0.5)
+    flat = shapely.transform(dense, lambda xy: np.column_stack(
+        [np.radians(xy[:, 0]), np.sin(np.radians(np.clip(xy[:, 1], -90.0, 90.0)))]))
+    return float(flat.area) * _SPHERE_RADIUS_M**2
+
+
+def _distance_to_ring_km(part: Polygon, home: Polygon) -> float:
+    rp = part.representative_point()
+    x, y = np.asarray(home.exterior.coords).T
+    _, _, d = GEOD.inv(np.full_like(x, rp.x), np.full_like(y, rp.y), x, y)
+    return float(np.min(d)) / 1000.0
+
+
+@functools.lru_cache(maxsize=1)
+def _continent_parts() -> dict[str, tuple[Polygon, ...]]:
+    table = countries()
+    geoms = list(table.geometry)
+    labels = [str(c) for c in table["CONTINENT"]]
+    homes = [max(_parts(g), key=_area_m2) for g in geoms]
+    out: dict[str, list[Polygon]] = {c: [] for c in CONTINENTS}
+
+    def nearest_label(part: Polygon, skip: int, unlike: str | None) -> tuple[float, str]:
+        best = (np.inf, "")
+        for j, home in enumerate(homes):
+            if j == skip or labels[j] not in CONTINENTS or (unlike and labels[j] == unlike):
+                continue
+            best = min(best, (_distance_to_ring_km(part, home), labels[j]))
+        return best
+
+    for i, geom in enumerate(geoms):
+        if str(table["ADM0_A3"].iloc[i]) == "RUS":
+            europe_box = box(0.0, -90.0, _RUSSIA_SPLIT_LON_DEG, 90.0)
+            out["Europe"].extend(_parts(geom.intersection(europe_box)))
+            out["Asia"].extend(_parts(geom.difference(europe_box)))
+            continue
+        for part in _parts(geom):
+            label = labels[i]
+            if label not in CONTINENTS:
+                label = nearest_label(part, i, None)[1]
+            elif part is not homes[i] and not part.equals(homes[i]):
+                own = _distance_to_ring_km(part, homes[i])
+                if own > _FAR_FROM_HOME_KM:
+                    other_km, other = nearest_label(part, i, label)
+                    if other_km < own:
+                        label = other
+            out[label].append(part)
+    return {k: tuple(v) for k, v in out.items()}
+
+
+def continent_geometry(name: str) -> MultiPolygon:
+    key = _continent_key(name)
+    if key is None:
+        raise RegionError(_unknown("continent", name, CONTINENTS))
+    return MultiPolygon(list(_continent_parts()[key]))
+
+
+def _continent_key(name: str) -> str | None:
+    norm = re.sub(r"[\s_\-]+", " ", name.strip().lower())
+    for c in CONTINENTS:
+        if c.lower() == norm:
+            return c
+    return None
+
+
+def _unknown(kind: str, name: str, choices) -> str:
+    close = difflib.get_close_matches(name, list(choices), n=3, cutoff=0.6)
+    if not close:
+        lowered = {str(c).lower(): str(c) for c in choices}
+        close = [lowered[c] for c in difflib.get_close_matches(name.lower(), list(lowered), n=3, cutoff=0.6)]
+    hint = f"; did you mean {' or '.join(repr(c) for c in close)}?" if close else ""
+    return f"unknown {kind} {name!r}{hint}"
+
+
+# --------------------------------------------------------------------------
+# Parsing
+
+
+def parse_region(text: str) -> Region:
+    """Parse a region string; names are checked, files are not yet read."""
+    if not isinstance(text, str) or ":" not in text:
+        raise RegionError(f"{text!r} is not a region; expected KIND:ARGS with KIND one of "
+                          + ", ".join(_KINDS))
+    kind, _, arg = text.partition(":")
+    kind = kind.strip().lower()
+    arg = arg.strip()
+    if kind not in _KINDS:
+        raise RegionError(_unknown("region kind", kind, _KINDS) + f" (in {text!r})")
+    if kind == "country":
+        idx = _country_index()
+        if arg.lower() not in idx:
+            raise RegionError(_unknown("country", arg, list(countries()["NAME"]) + list(countries()["ADM0_A3"])))
+        return Region(kind, text, name=str(countries()["NAME"].iloc[idx[arg.lower()]]))
+    if kind == "continent":
+        key = _continent_key(arg)
+        if key is None:
+            raise RegionError(_unknown("continent", arg, CONTINENTS))
+        return Region(kind, text, name=key)
+    if kind == "file":
+        if not arg:
+            raise RegionError("file: needs a path, e.g. file:regions/club.geojson")
+        return Region(kind, text, name=arg)
+    try:
+        numbers = tuple(float(v) for v in arg.split(","))
+    except ValueError:
+        numbers = ()
+    if kind == "circle":
+        if len(numbers) != 3 or not all(np.isfinite(numbers)):
+            raise RegionError(f"{text!r}: expected circle:LAT,LON,RADIUS_KM (three numbers)")
+        lat, lon, radius = numbers
+        if not -90.0 <= lat <= 90.0 or not -180.0 <= lon <= 180.0:
+            raise RegionError(f"{text!r}: the centre is off the globe (latitude -90..90, longitude -180..180)")
+        if not 0.0 < radius < 20000.0:
+            raise RegionError(f"{text!r}: the radius must be more than 0 and less than 20000 km")
+        return Region(kind, text, numbers=numbers)
+    if len(numbers) != 4 or not all(np.isfinite(numbers)):
+        raise RegionError(f"{text!r}: expected sector:FROM_DEG,TO_DEG,MIN_KM,MAX_KM (four numbers)")
+    _, _, dmin, dmax = numbers
+    if not 0.0 <= dmin < dmax <= 20038.0:
+        raise RegionError(f"{text!r}: distances must satisfy 0 <= MIN_KM < MAX_KM <= 20038")
+    return Region(kind, text, numbers=numbers)
+
+
+# --------------------------------------------------------------------------
+# Geometry
+
+
+def _wrap_to_lon_range(poly: Polygon) -> list[Polygon]:
+    """Split a polygon whose longitudes run past +-180 into parts inside it."""
+    out = []
+    for shift in (-360.0, 0.0, 360.0):
+        window = box(-180.0 - shift, -90.0, 180.0 - shift, 90.0)
+        piece = poly.intersection(window)
+        if piece.is_empty:
+            continue
+        piece = shapely.affinity.translate(piece, xoff=shift)
+        out.extend(_parts(piece))
+    return out
+
+
+def _pole_longitudes(lons: np.ndarray, lats: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Replace each run of points at a pole (longitude undefined) by two points.
+
+    The run becomes the pole at the longitude of the point before it and the
+    pole at the longitude of the point after it, so that the ring runs along
+    the pole line from one to the other.
+    """
+    at_pole = np.abs(lats) > 90.0 - 1e-9
+    if not at_pole.any() or at_pole.all():
+        return lons, lats
+    n = lons.size
+    start = int(np.flatnonzero(~at_pole)[0])  # walk the closed ring from a normal point
+    order = np.roll(np.arange(n), -start)
+    out_lon: list[float] = []
+    out_lat: list[float] = []
+    k = 0
+    while k < n:
+        i = order[k]
+        if not at_pole[i]:
+            out_lon.append(lons[i])
+            out_lat.append(lats[i])
+            k += 1
+            continue
+        pole = 90.0 if lats[i] > 0 else -90.0
+        run_end = k
+        while run_end + 1 < n and at_pole[order[run_end + 1]]:
+            run_end += 1
+        after = order[(run_end + 1) % n]
+        out_lon += [out_lon[-1], lons[after]]
+        out_lat += [pole, pole]
+        k = run_end + 1
+    return np.asarray(out_lon), np.asarray(out_lat)
+
+
+def _cell_polygon(lons: np.ndarray, lats: np.ndarray) -> list[Polygon]:
+    """A small closed ring on the sphere (lon/lat in degrees) as lon/lat polygons.
+
+    Longitudes are unwrapped along the ring; a ring that winds once around a
+    pole is closed through that pole; the result is cut at +-180 deg.
+    """
+    lons, lats = _pole_longitudes(np.asarray(lons, dtype=float), np.asarray(lats, dtype=float))
+    lon_u = np.degrees(np.unwrap(np.radians(lons)))
+    winding = lon_u[-1] - lon_u[0]  # the ring is closed: 0 or +-360 deg
+    if abs(winding) > 180.0:  # encircles a pole: close the ring through it
+        pole = 90.0 if np.mean(lats) > 0 else -90.0
+        ring = list(zip(lon_u, lats)) + [(lon_u[-1], pole), (lon_u[0], pole)]
+        poly = shapely.affinity.translate(Polygon(ring).buffer(0), xoff=-180.0 - min(lon_u[0], lon_u[-1]))
+    else:
+        poly = Polygon(list(zip(lon_u, lats))).buffer(0)
+    parts = []
+    for p in _parts(poly):
+        parts.extend(_wrap_to_lon_range(p))
+    return parts
+
+
+def _polar_region(lon0: float, lat0: float, az_from: float, az_to: float,
+                  dmin_km: float, dmax_km: float) -> MultiPolygon:
+    """Points at bearing az_from..az_to (clockwise) and distance dmin..dmax of a centre.
+
+    Built as a union of small geodesic cells, so that any size works: cells
+    around a pole are closed through it, cells across +-180 deg are cut.
+    """
+    span = (az_to - az_from) % 360.0
+    if span == 0.0:
+        span = 360.0
+    n_az = max(4, int(np.ceil(span / 10.0)))
+    n_d = max(1, int(np.ceil((dmax_km - dmin_km) / 1000.0)))
+    az_edges = az_from + np.linspace(0.0, span, n_az + 1)
+    d_edges = np.linspace(dmin_km, dmax_km, n_d + 1)
+    k = 24  # points per cell edge, so cell edges follow the geodesics
+    cells = []
+    for i in range(n_az):
+        for j in range(n_d):
+            a = np.linspace(az_edges[i], az_edges[i + 1], k)
+            d = np.linspace(d_edges[j], d_edges[j + 1], k)
+            ring_az = np.concatenate([a, np.full(k, az_edges[i + 1]), a[::-1], np.full(k, az_edges[i])])
+            ring_d = np.concatenate([np.full(k, d_edges[j]), d, np.full(k, d_edges[j + 1]), d[::-1]])
+            lons, lats, _ = GEOD.fwd(np.full(ring_az.size, lon0), np.full(ring_az.size, lat0),
+                                     ring_az, ring_d * 1000.0)
+            cells.extend(_cell_polygon(np.asarray(lons), np.asarray(lats)))
+    merged = shapely.union_all([c for c in cells if c.is_valid and c.area > 0]).buffer(0)
+    return MultiPolygon(_parts(merged))
+
+
+def _read_file(name: str, base_dir: str) -> MultiPolygon:
+    import geopandas as gpd
+
+    path = Path(name)
+    if not path.is_absolute():
+        path = Path(base_dir) / path
+    if not path.is_file():
+        raise RegionError(f"file:{name}: no such file ({path})")
+    try:
+        frame = gpd.read_file(path)
+    except Exception as exc:  # pyogrio raises several kinds
+        raise RegionError(f"file:{name}: cannot be read as a vector file ({type(exc).__name__})") from None
+    if frame.crs is not None and not frame.crs.equals("EPSG:4326"):
+        frame = frame.to_crs("EPSG:4326")
+    polys = [p for g in frame.geometry if g is not None for p in _parts(g)]
+    if not polys:
+        raise RegionError(f"file:{name}: holds no polygons")
+    return MultiPolygon(polys)
+
+
+@dataclass(frozen=True, slots=True)
+class Disc:
+    """The exact test of a circle or sector: bearing and distance from a centre."""
+
+    lon_deg: float
+    lat_deg: float
+    az_from_deg: float
+    span_deg: float          # clockwise from az_from; 360 is all round
+    min_km: float
+    max_km: float
+
+    def contains(self, lons_deg: np.ndarray, lats_deg: np.ndarray) -> np.ndarray:
+        lons = np.asarray(lons_deg, dtype=float)
+        az, _, d = GEOD.inv(np.full_like(lons, self.lon_deg), np.full_like(lons, self.lat_deg),
+                            lons, np.asarray(lats_deg, dtype=float))
+        d_km = np.asarray(d) / 1000.0
+        ok = (d_km >= self.min_km) & (d_km <= self.max_km)
+        if self.span_deg < 360.0:
+            ok &= np.mod(np.asarray(az) - self.az_from_deg, 360.0) <= self.span_deg
+        return ok
+
+
+@dataclass(frozen=True, slots=True)
+class GoalArea:
+    """A resolved region: lon/lat polygons for maps, plus how to sample it.
+
+    ``geometry`` holds lon/lat polygons (degrees, longitudes in -180..180).
+    Circles and sectors also carry their exact ``disc`` test, which sampling
+    uses, so that their points are right even where the lon/lat polygon is
+    only approximate (around a pole).
+    """
+
+    text: str
+    geometry: MultiPolygon
+    disc: Disc | None = None
+    clip: tuple[float, float, float, float] | None = None
+
+
+def _clip_geometry(clip: tuple[float, float, float, float]) -> BaseGeometry:
+    west, south, east, north = clip
+    if west <= east:
+        return box(west, south, east, north)
+    return shapely.union_all([box(west, south, 180.0, north), box(-180.0, south, east, north)])
+
+
+def _in_clip(clip, lons: np.ndarray, lats: np.ndarray) -> np.ndarray:
+    west, south, east, north = clip
+    ok = (lats >= south) & (lats <= north)
+    return ok & ((lons >= west) & (lons <= east) if west <= east else (lons >= west) | (lons <= east))
+
+
+def resolve(region: Region | str, station: Station, base_dir: str | os.PathLike[str] = ".",
+            clip: tuple[float, float, float, float] | None = None) -> GoalArea:
+    """Resolve a region string against the shipped data, the station and files.
+
+    ``clip`` is (west, south, east, north) in degrees; west > east means the
+    box crosses the antimeridian.
+    """
+    reg = parse_region(region) if isinstance(region, str) else region
+    disc = None
+    if reg.kind == "country":
+        row = _country_index()[reg.name.lower()]
+        geom = MultiPolygon(_parts(countries().geometry.iloc[row]))
+    elif reg.kind == "continent":
+        geom = continent_geometry(reg.name)
+    elif reg.kind == "circle":
+        lat, lon, radius = reg.numbers
+        disc = Disc(lon, lat, 0.0, 360.0, 0.0, radius)
+    elif reg.kind == "sector":
+        a, b, dmin, dmax = reg.numbers
+        span = (b - a) % 360.0 or 360.0
+        disc = Disc(station.lon_deg, station.lat_deg, a % 360.0, span, dmin, dmax)
+    else:
+        geom = _read_file(reg.name, str(base_dir))
+    if disc is not None:
+        geom = _polar_region(disc.lon_deg, disc.lat_deg, disc.az_from_deg,
+                             disc.az_from_deg + disc.span_deg, disc.min_km, disc.max_km)
+    if clip is not None:
+        geom = MultiPolygon(_parts(geom.intersection(_clip_geometry(clip))))
+    if geom.is_empty or _area_m2(geom) <= 0.0:
+        raise RegionError(f"{reg.text!r}" + (f" clipped to {list(clip)}" if clip else "")
+                          + ": the region is empty")
+    return GoalArea(reg.text, geom, disc, clip)
+
+
+# --------------------------------------------------------------------------
+# Sampling
+
+
+def _cap_candidates(disc: Disc, m: int, rng: np.random.Generator) -> tuple[np.ndarray, np.ndarray]:
+    """``m`` points uniform by area on the spherical cap that holds the disc."""
+    r_km = 6371.0
+    cap = min(np.pi, disc.max_km * 1.01 / r_km + 0.005)
+    z = rng.uniform(np.cos(cap), 1.0, m)          # uniform in cos(colatitude): equal area
+    theta = np.arccos(z)
+    az = rng.uniform(0.0, 360.0, m)
+    lons, lats, _ = GEOD.fwd(np.full(m, disc.lon_deg), np.full(m, disc.lat_deg), az, theta * r_km * 1000.0)
+    return np.asarray(lons), np.asarray(lats)
+
+
+def sample_points(area: GoalArea | BaseGeometry, n: int, seed: int = 1) -> tuple[np.ndarray, np.ndarray]:
+    """``n`` points uniform by area on the sphere inside the region, deterministic.
+
+    Polygons: each part gets a share of the points by its area (largest
+    remainder), then candidates uniform in longitude and in sin(latitude)
+    over the part's bounding box -- uniform by area on the sphere -- are kept
+    where ``shapely.contains_xy`` accepts them. Circles and sectors: points
+    uniform on the spherical cap that holds them, kept by the exact bearing
+    and distance test (and the clip box).
+
+    Returns
+    -------
+    lons_deg, lats_deg : ndarray, shape (n,)
+    """
+    rng = np.random.default_rng(seed)
+    if isinstance(area, GoalArea) and area.disc is not None:
+        return _sample_disc(area, n, rng)
+    geom = area.geometry if isinstance(area, GoalArea) else area
+    parts = _parts(geom)
+    if n <= 0 or not parts:
+        return np.empty(0), np.empty(0)
+    areas = np.array([_area_m2(p) for p in parts])
+    share = areas / areas.sum() * n
+    counts = np.floor(share).astype(int)
+    for i in np.argsort(-(share - counts))[: n - counts.sum()]:
+        counts[i] += 1
+    lons_out, lats_out = [], []
+    for part, count in zip(parts, counts):
+        if count == 0:
+            continue
+        shapely.prepare(part)
+        west, south, east, north = part.bounds
+        s_lo, s_hi = np.sin(np.radians(south)), np.sin(np.radians(north))
+
+        def draw(m: int, part=part, west=west, east=east, s_lo=s_lo, s_hi=s_hi):
+            lon = rng.uniform(west, east, m)
+            lat = np.degrees(np.arcsin(rng.uniform(s_lo, s_hi, m)))
+            return lon, lat, shapely.contains_xy(part, lon, lat)
+
+        lon, lat = _keep_until(draw, count)
+        if lon.size == 0:  # a sliver: fall back on a point that lies inside it
+            rp = part.representative_point()
+            lon, lat = np.full(count, rp.x), np.full(count, rp.y)
+        lons_out.append(lon)
+        lats_out.append(lat)
+    return np.concatenate(lons_out), np.concatenate(lats_out)
+
+
+def _sample_disc(area: GoalArea, n: int, rng: np.random.Generator) -> tuple[np.ndarray, np.ndarray]:
+    disc = area.disc
+
+    def draw(m: int):
+        lon, lat = _cap_candidates(disc, m, rng)
+        ok = disc.contains(lon, lat)
+        if area.clip is not None:
+            ok &= _in_clip(area.clip, lon, lat)
+        return lon, lat, ok
+
+    lon, lat = _keep_until(draw, n)
+    if lon.size == 0:
+        rp = area.geometry.representative_point()
+        lon, lat = np.full(n, rp.x), np.full(n, rp.y)
+    return lon, lat
+
+
+def _keep_until(draw, count: int, rounds: int = 200) -> tuple[np.ndarray, np.ndarray]:
+    """Draw candidate batches until ``count`` are kept (in draw order)."""
+    kept_lon, kept_lat = [], []
+    got = 0
+    m = max(256, 4 * count)
+    for _ in range(rounds):
+        lon, lat, ok = draw(m)
+        kept_lon.append(lon[ok])
+        kept_lat.append(lat[ok])
+        got += int(ok.sum())
+        if got >= count:
+            break
+        rate = max(got / (m * (len(kept_lon))), 1e-4)
+        m = int(min(2_000_000, max(256, 1.2 * (count - got) / rate)))
+    lon = np.concatenate(kept_lon)[:count]
+    lat = np.concatenate(kept_lat)[:count]
+    if 0 < lon.size < count:  # very thin region: repeat the kept points
+        idx = np.resize(np.arange(lon.size), count)
+        lon, lat = lon[idx], lat[idx]
+    return lon, lat
+
+
+# --------------------------------------------------------------------------
+# Site-level helpers (duck-typed on lobeplan.site.Site / Goal: geo does not
+# import the site module)
+
+
+@functools.lru_cache(maxsize=256)
+def _cached_area(text: str, lon: float, lat: float, base_dir: str,
+                 clip: tuple[float, float, float, float] | None) -> GoalArea:
+    return resolve(text, Station("", lat, lon, ""), base_dir, clip)
+
+
+@functools.lru_cache(maxsize=256)
+def _cached_points(text: str, lon: float, lat: float, base_dir: str,
+                   clip: tuple[float, float, float, float] | None, n: int, seed: int):
+    lons, lats = sample_points(_cached_area(text, lon, lat, base_dir, clip), n, seed)
+    lons.flags.writeable = False
+    lats.flags.writeable = False
+    return lons, lats
+
+
+def region_area(site, text: str, clip=None, key: str = "") -> GoalArea:
+    """Resolve a region string of a site; errors become ``SiteError`` at ``key``."""
+    from ..errors import SiteError
+
+    try:
+        return _cached_area(text, site.station.lon_deg, site.station.lat_deg, site.base_dir, clip)
+    except RegionError as exc:
+        raise SiteError(site.file, key, str(exc)) from None
+
+
+def region_points(site, text: str, clip=None, key: str = "") -> tuple[np.ndarray, np.ndarray]:
+    """Area-uniform sample points of a region (``site.propagation.points_per_goal``)."""
+    from ..errors import SiteError
+
+    try:
+        return _cached_points(text, site.station.lon_deg, site.station.lat_deg, site.base_dir, clip,
+                              site.propagation.points_per_goal, site.propagation.seed)
+    except RegionError as exc:
+        raise SiteError(site.file, key, str(exc)) from None
+
+
+def goal_area(site, goal) -> GoalArea:
+    return region_area(site, goal.region, goal.clip, f"{goal.key}.region")
+
+
+def goal_points(site, goal) -> tuple[np.ndarray, np.ndarray]:
+    """Sample points (lons_deg, lats_deg) of a goal's region, clip applied."""
+    return region_points(site, goal.region, goal.clip, f"{goal.key}.region")

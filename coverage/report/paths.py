@@ -1,0 +1,55 @@
+"""`lobeplan paths`: bearings and distances from the station to every goal."""
+from __future__ import annotations
+
+import numpy as np
+
+from ..geo.paths import bearing_arc, goal_paths
+from ..geo.regions import goal_points
+
+HELP = "bearings and distances (short and long path) to every goal region"
+
+__all__ = ["HELP", "build", "format_text", "goal_path_rows"]
+
+
+def goal_path_rows(site) -> list[dict]:
+    rows = []
+    for goal in site.goals:
+        lons, lats = goal_points(site, goal)
+        bearing, dist = goal_paths(site.station, lons, lats, goal.path)
+        start, end, median = bearing_arc(bearing)
+        rows.append({
+            "name": goal.name,
+            "region": goal.region,
+            "path": goal.path,
+            "points": int(lons.size),
+            "bearing_deg": {"start": round(start, 1), "end": round(end, 1), "median": round(median, 1)},
+            "distance_km": {"min": round(float(np.min(dist)), 1), "median": round(float(np.median(dist)), 1),
+                            "max": round(float(np.max(dist)), 1)},
+        })
+    return rows
+
+
+def build(site, args=None) -> dict:
+    st = site.station
+    return {
+        "station": {"lat_deg": round(st.lat_deg, 6), "lon_deg": round(st.lon_deg, 6), "locator": st.locator},
+        "goals": goal_path_rows(site),
+    }
+
+
+def format_text(result: dict) -> str:
+    st = result["station"]
+    lines = [f"Great-circle paths from {st['locator']} ({st['lat_deg']:.4f}, {st['lon_deg']:.4f})",
+             "",
+             f"{'goal':<28} {'path':<5} {'bearings (clockwise)':>22} {'median':>7}"
+             f" {'nearest':>9} {'median':>9} {'farthest':>9} {'points':>6}",
+             f"{'':<28} {'':<5} {'deg':>22} {'deg':>7} {'km':>9} {'km':>9} {'km':>9}"]
+    for g in result["goals"]:
+        b, d = g["bearing_deg"], g["distance_km"]
+        arc = f"{b['start']:5.1f} -> {b['end']:5.1f}"
+        lines.append(f"{g['name'][:28]:<28} {g['path']:<5} {arc:>22} {b['median']:7.1f}"
+                     f" {d['min']:9.0f} {d['median']:9.0f} {d['max']:9.0f} {g['points']:6d}")
+    lines.append("")
+    lines.append("Bearings are true (clockwise from north); long path = bearing + 180 deg, "
+                 "distance = 40030 km - short.")
+    return "\n".join(lines) + "\n"
