@@ -90,3 +90,16 @@ def test_year_outside_pyiri_range_is_refused():
     s = PropagationSettings(model="climatology", month=6, year=2040, solar_flux=100.0)
     with pytest.raises(ValueError, match="propagation.year"):
         prepare_goal(s, 0.0, 0.0, [10.0], [0.0], [90.0], [1113.0], "short")
+
+
+def test_absorption_sees_every_hop(prepared):
+    # beyond 4000 km the P.533 control points are the first and last hop
+    # midpoints, so the per-hop zenith angles must agree with them there;
+    # the 9500 km path (three hops of <= 3225 km, CHECKS.md) adds a middle one
+    _, geo = prepared
+    z = geo.hop_zenith_deg
+    assert z.shape == (24, 4, 3)
+    np.testing.assert_allclose(z[:, 3, 0], geo.ionosphere.solar_zenith_deg[:, 3, 0], atol=1e-9)
+    np.testing.assert_allclose(z[:, 3, 2], geo.ionosphere.solar_zenith_deg[:, 3, 1], atol=1e-9)
+    assert np.isfinite(z[:, 3, 1]).all() and np.abs(z[:, 3, 1] - z[:, 3, 0]).max() > 5
+    assert np.isnan(z[:, 0, 1:]).all()  # the 1500 km path has one hop

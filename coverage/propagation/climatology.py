@@ -38,6 +38,7 @@ __all__ = [
     "Ionosphere",
     "solar_input",
     "ionosphere",
+    "solar_zenith_deg",
 ]
 
 # F10.7 of a 12-month smoothed sunspot number of 0 and 150 (the IRI
@@ -202,3 +203,30 @@ def ionosphere(year: int, month: int, hours_utc, lons_deg, lats_deg, solar_flux_
         foe_mhz=np.clip(e["fo"], 0.0, None),
         solar_zenith_deg=e["solzen"],
     )
+
+
+def solar_zenith_deg(year: int, month: int, hours_utc, lons_deg, lats_deg) -> np.ndarray:
+    """Solar zenith angle on day 15 of the month, as PyIRI computes it for foE.
+
+    Parameters
+    ----------
+    year, month : int
+    hours_utc : array_like, shape (n_hours,)
+    lons_deg, lats_deg : array_like, shape (n_points,)
+
+    Returns
+    -------
+    ndarray, shape (n_hours, n_points)
+        Degrees.
+
+    References
+    ----------
+    Forsythe et al. (2023) (PyIRI's subsolar point and zenith angle).
+    """
+    import PyIRI.main_library as ml
+
+    aut = np.atleast_1d(np.asarray(hours_utc, dtype=float))
+    alon = np.atleast_1d(np.asarray(lons_deg, dtype=float))
+    alat = np.atleast_1d(np.asarray(lats_deg, dtype=float))
+    chi, _, _ = ml.solzen_timearray_grid(year, month, 15, aut, alon, alat)
+    return np.asarray(chi, dtype=float).reshape(aut.size, alon.size)

@@ -29,7 +29,8 @@ climatology
       control points);
     - E: P(day's E MUF > f), the E MUF foE sec i at the E height;
     - below 10 MHz, zero if the daytime absorption estimate exceeds
-      ``absorption_limit_db``.
+      ``absorption_limit_db`` (George and Bradley's form with the absorption
+      index averaged over the reflection points of all hops).
 
     The modes of one path and hour rise and fall with the same ionosphere,
     so they are taken as fully correlated: the path is open with the
@@ -104,6 +105,11 @@ class GoalGeometry:
     ionosphere : climatology.Ionosphere or None
         For the climatology model: arrays of shape (n_hours, n_points, 2),
         the last axis the two control points.
+    hop_zenith_deg : ndarray or None
+        For the climatology model, shape (n_hours, n_points, k): solar
+        zenith angle at the reflection point of each hop of the
+        lowest-order F2 mode at the nominal height (NaN past a path's own
+        hop count), for the absorption estimate.
     solar : climatology.SolarInput or None
     year, month : int
     """
@@ -120,6 +126,7 @@ class GoalGeometry:
     control_lons_deg: np.ndarray
     control_lats_deg: np.ndarray
     ionosphere: clim.Ionosphere | None
+    hop_zenith_deg: np.ndarray | None
     solar: clim.SolarInput | None
     year: int
     month: int
@@ -241,13 +248,14 @@ def prepare_goal(settings: PropagationSettings, station_lon_deg: float, station_
     dist = np.asarray(distance_km, dtype=float).ravel()
     if not lons.size == lats.size == bearing.size == dist.size:
         raise ValueError("prepare_goal: lons_deg, lats_deg, bearing_deg and distance_km differ in length")
-    total = 2 if settings.model == "climatology" else 1
+    total = 3 if settings.model == "climatology" else 1
     if progress is not None:
         progress(0, total)
 
     # control-point positions use the nominal F2 height: P.533 places them
     # by the lowest-order hop before any ionosphere is known
-    hop_km = dist / min_hops(dist, settings.f2_height_km, settings.min_elevation_deg)
+    n0 = min_hops(dist, settings.f2_height_km, settings.min_elevation_deg)
+    hop_km = dist / n0
     along = control_point_distances_km(dist, hop_km)
     cp_lon, cp_lat = control_points(station_lon_deg, station_lat_deg, bearing, along)
     if progress is not None:
@@ -256,6 +264,7 @@ def prepare_goal(settings: PropagationSettings, station_lon_deg: float, station_
     hours = tuple(settings.hours)
     iono = None
     solar = None
+    hop_zenith = None
     if settings.model == "climatology":
         solar = clim.solar_input(settings.solar_flux, settings.sunspot_number)
         ut = np.asarray(hours, dtype=float) + 0.5
@@ -272,13 +281,25 @@ def prepare_goal(settings: PropagationSettings, station_lon_deg: float, station_
         )
         if progress is not None:
             progress(2, total)
+        # the absorption estimate looks at every hop, not only the two
+        # control points (beyond 4000 km those are the first and last hop
+        # midpoints, so the sets agree there)
+        k = int(n0.max()) if n0.size else 1
+        valid = np.arange(k)[None, :] < n0[:, None]
+        along_hops = np.where(valid, (np.arange(k)[None, :] + 0.5) * hop_km[:, None], 0.0)
+        hop_lon, hop_lat = control_points(station_lon_deg, station_lat_deg, bearing, along_hops)
+        chi = clim.solar_zenith_deg(settings.year, settings.month, ut, hop_lon.ravel(), hop_lat.ravel())
+        chi = chi.reshape(len(hours), lons.size, k)
+        hop_zenith = _frozen(np.where(valid[None, :, :], chi, np.nan))
+        if progress is not None:
+            progress(3, total)
     return GoalGeometry(
         model=settings.model, path=path,
         station_lon_deg=float(station_lon_deg), station_lat_deg=float(station_lat_deg),
         lons_deg=_frozen(lons), lats_deg=_frozen(lats), bearing_deg=_frozen(bearing),
         distance_km=_frozen(dist), hours_utc=hours,
         control_lons_deg=_frozen(cp_lon), control_lats_deg=_frozen(cp_lat),
-        ionosphere=iono, solar=solar, year=int(settings.year), month=int(settings.month),
+        ionosphere=iono, hop_zenith_deg=hop_zenith, solar=solar, year=int(settings.year), month=int(settings.month),
     )
 
 
@@ -328,7 +349,7 @@ def _climatology_modes(geo: GoalGeometry, freq_mhz: float, settings: Propagation
             p[..., j] = open_probability(freq_mhz, muf, E_DECILE_FACTORS)
     p = np.where(hops > 0, p, 0.0)
     if freq_mhz * 1e6 < ABSORPTION_BELOW_HZ:
-        index = absorption_index(io.solar_zenith_deg, geo.solar.sunspot_number).mean(axis=-1)
+        index = np.nanmean(absorption_index(geo.hop_zenith_deg, geo.solar.sunspot_number), axis=-1)
         loss_db = absorption_db(freq_mhz, np.nan_to_num(el), hops, index[..., None])
         p = np.where(loss_db <= settings.absorption_limit_db, p, 0.0)
     return modes.layer, hops, el, p
@@ -348,10 +369,12 @@ def _caveats(geo: GoalGeometry, freq_hz: float, settings: PropagationSettings) -
         f"{geo.year}-{geo.month:02d} at F10.7 {s.flux_sfu:.0f} sfu; the day-to-day spread uses fixed "
         f"decile factors ({F2_DECILE_FACTORS[0]:g}/{F2_DECILE_FACTORS[1]:g} F2, "
         f"{E_DECILE_FACTORS[0]:g}/{E_DECILE_FACTORS[1]:g} E).",
+        "Sporadic E, the F1 layer, auroral and polar effects, noise and power are not modelled.",
     ]
     if freq_hz < ABSORPTION_BELOW_HZ:
-        out.append("The lowest usable frequency is not modelled beyond a daytime absorption estimate: "
-                   f"a mode counts as closed when it exceeds {settings.absorption_limit_db:g} dB.")
+        out.append("The lowest usable frequency is not modelled beyond a daytime absorption estimate "
+                   f"below {ABSORPTION_BELOW_HZ / 1e6:g} MHz: a mode counts as closed when it exceeds "
+                   f"{settings.absorption_limit_db:g} dB.")
     else:
         out.append("The lowest usable frequency is not modelled: no absorption is estimated at "
                    f"{ABSORPTION_BELOW_HZ / 1e6:g} MHz and above.")
@@ -359,7 +382,6 @@ def _caveats(geo: GoalGeometry, freq_hz: float, settings: PropagationSettings) -
         lo, hi = clim.SOLAR_FLUX_RANGE_SFU
         out.append(f"Solar input {s.requested_sfu:.0f} sfu was clamped to {s.flux_sfu:.0f} sfu: the maps "
                    f"are used only within {lo:.0f}..{hi:.0f} sfu (sunspot number 0..150).")
-    out.append("Sporadic E, the F1 layer, auroral and polar effects, noise and power are not modelled.")
     return tuple(out)
 
 
