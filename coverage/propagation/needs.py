@@ -59,7 +59,7 @@ from .muf import (E_DECILE_FACTORS, F2_DECILE_FACTORS, absorption_db, absorption
                   control_point_distances_km, control_points, m3000_muf, open_probability,
                   secant_law_muf)
 
-__all__ = ["GoalGeometry", "ModeShare", "Needs", "prepare_goal", "band_needs",
+__all__ = ["GoalGeometry", "ModeTable", "ModeShare", "Needs", "prepare_goal", "band_needs",
            "ABSORPTION_BELOW_HZ", "OPEN_HOUR_FRACTION"]
 
 ABSORPTION_BELOW_HZ = 10e6
@@ -112,6 +112,8 @@ class GoalGeometry:
         hop count), for the absorption estimate.
     solar : climatology.SolarInput or None
     year, month : int
+    modes : ModeTable
+        Candidate modes with their MUFs, band-independent.
     """
 
     model: str
@@ -130,6 +132,7 @@ class GoalGeometry:
     solar: clim.SolarInput | None
     year: int
     month: int
+    modes: "ModeTable"
 
 
 @dataclass(frozen=True, slots=True)
@@ -291,8 +294,11 @@ def prepare_goal(settings: PropagationSettings, station_lon_deg: float, station_
         chi = clim.solar_zenith_deg(settings.year, settings.month, ut, hop_lon.ravel(), hop_lat.ravel())
         chi = chi.reshape(len(hours), lons.size, k)
         hop_zenith = _frozen(np.where(valid[None, :, :], chi, np.nan))
+        table = _climatology_table(dist, iono, hop_zenith, solar.sunspot_number, settings)
         if progress is not None:
             progress(3, total)
+    else:
+        table = _geometry_table(dist, len(hours), settings)
     return GoalGeometry(
         model=settings.model, path=path,
         station_lon_deg=float(station_lon_deg), station_lat_deg=float(station_lat_deg),
@@ -300,6 +306,7 @@ def prepare_goal(settings: PropagationSettings, station_lon_deg: float, station_
         distance_km=_frozen(dist), hours_utc=hours,
         control_lons_deg=_frozen(cp_lon), control_lats_deg=_frozen(cp_lat),
         ionosphere=iono, hop_zenith_deg=hop_zenith, solar=solar, year=int(settings.year), month=int(settings.month),
+        modes=table,
     )
 
 
@@ -311,48 +318,84 @@ def _weighted_quantiles(values: np.ndarray, weights: np.ndarray, qs) -> list[flo
     return [float(np.interp(q, cum / w.sum(), v)) for q in qs]
 
 
-def _geometry_modes(geo: GoalGeometry, settings: PropagationSettings):
-    modes = path_modes(geo.distance_km, settings.f2_height_km, settings.e_height_km,
+@dataclass(frozen=True, slots=True)
+class ModeTable:
+    """Band-independent candidate modes of every path and hour.
+
+    Attributes
+    ----------
+    layer : tuple of str, length n_modes
+    hops : ndarray of int, shape (n_hours, n_points, n_modes)
+        0 where the mode does not exist.
+    elevation_deg : ndarray, shape (n_hours, n_points, n_modes)
+    muf_mhz : ndarray or None, shape (n_hours, n_points, n_modes)
+        Monthly-median MUF of the mode (lowest over the control points);
+        None for the geometry model.
+    screen_muf_mhz : ndarray or None, same shape
+        E-layer MUF for an F2 mode's own ray (highest over the control
+        points); 0 for E modes; None for the geometry model.
+    absorption_index : ndarray or None, shape (n_hours, n_points, 1)
+        George-Bradley index averaged over the hops' reflection points.
+    """
+
+    layer: tuple[str, ...]
+    hops: np.ndarray
+    elevation_deg: np.ndarray
+    muf_mhz: np.ndarray | None
+    screen_muf_mhz: np.ndarray | None
+    absorption_index: np.ndarray | None
+
+
+def _geometry_table(distance_km: np.ndarray, n_hours: int, settings: PropagationSettings) -> ModeTable:
+    modes = path_modes(distance_km, settings.f2_height_km, settings.e_height_km,
                        settings.min_elevation_deg, extra_f2_hops=0, extra_e_hops=0)
-    n_hours = len(geo.hours_utc)
-    shape = (n_hours, geo.distance_km.size, 1)
-    el = np.broadcast_to(modes.elevation_deg[None, :, :1], shape)
-    hops = np.broadcast_to(modes.hops[None, :, :1], shape)
-    p = np.ones(shape)
-    return ("F2",), hops, el, p
+    shape = (n_hours, distance_km.size, 1)
+    return ModeTable(("F2",), _frozen(np.broadcast_to(modes.hops[None, :, :1], shape), int),
+                     _frozen(np.broadcast_to(modes.elevation_deg[None, :, :1], shape)), None, None, None)
 
 
-def _climatology_modes(geo: GoalGeometry, freq_mhz: float, settings: PropagationSettings):
-    io = geo.ionosphere
+def _climatology_table(distance_km: np.ndarray, io: clim.Ionosphere, hop_zenith_deg: np.ndarray,
+                       sunspot_number: float, settings: PropagationSettings) -> ModeTable:
     fo = io.fof2_mhz                                   # (T, N, 2)
     hr = np.clip(io.hmf2_km, *_HMF2_LIMITS_KM)         # (T, N, 2)
     foe = io.foe_mhz
     he = settings.e_height_km
-    d = np.broadcast_to(geo.distance_km[None, :], fo.shape[:2])
+    d = np.broadcast_to(distance_km[None, :], fo.shape[:2])
     modes = path_modes(d, hr.mean(axis=-1), he, settings.min_elevation_deg,
                        extra_f2_hops=2, extra_e_hops=1, max_e_distance_km=4000.0)
     hops = modes.hops                                  # (T, N, M)
     el = modes.elevation_deg
-    p = np.zeros(hops.shape)
+    muf = np.zeros(hops.shape)
+    screen = np.zeros(hops.shape)
     safe_hops = np.maximum(hops, 1)
     for j, layer in enumerate(modes.layer):
         hop_km = d / safe_hops[..., j]
         if layer == "F2":
-            muf = np.min(m3000_muf(fo, io.m3000f2, hop_km[..., None], hr), axis=-1)
-            reflect = open_probability(freq_mhz, muf, F2_DECILE_FACTORS)
+            muf[..., j] = np.min(m3000_muf(fo, io.m3000f2, hop_km[..., None], hr), axis=-1)
             # E screening: the E layer's MUF for this ray's own angle
-            e_muf = np.max(foe * incidence_secant(el[..., j], he)[..., None], axis=-1)
-            screened = open_probability(freq_mhz, e_muf, E_DECILE_FACTORS)
-            p[..., j] = reflect * (1.0 - screened)
+            screen[..., j] = np.max(foe * incidence_secant(el[..., j], he)[..., None], axis=-1)
         else:
-            muf = np.min(secant_law_muf(foe, hop_km[..., None], he), axis=-1)
-            p[..., j] = open_probability(freq_mhz, muf, E_DECILE_FACTORS)
-    p = np.where(hops > 0, p, 0.0)
+            muf[..., j] = np.min(secant_law_muf(foe, hop_km[..., None], he), axis=-1)
+    muf = np.where(hops > 0, muf, 0.0)
+    index = np.nanmean(absorption_index(hop_zenith_deg, sunspot_number), axis=-1)[..., None]
+    return ModeTable(modes.layer, _frozen(hops, int), _frozen(el), _frozen(muf), _frozen(screen),
+                     _frozen(index))
+
+
+def _mode_probability(table: ModeTable, freq_mhz: float, settings: PropagationSettings) -> np.ndarray:
+    if table.muf_mhz is None:  # geometry: the lowest-order mode, always
+        return np.ones(table.hops.shape)
+    p = np.zeros(table.hops.shape)
+    f2 = np.array([layer == "F2" for layer in table.layer])
+    p[..., f2] = (open_probability(freq_mhz, table.muf_mhz[..., f2], F2_DECILE_FACTORS)
+                  * (1.0 - open_probability(freq_mhz, table.screen_muf_mhz[..., f2], E_DECILE_FACTORS)))
+    p[..., ~f2] = open_probability(freq_mhz, table.muf_mhz[..., ~f2], E_DECILE_FACTORS)
+    p = np.where(table.hops > 0, p, 0.0)
     if freq_mhz * 1e6 < ABSORPTION_BELOW_HZ:
-        index = np.nanmean(absorption_index(geo.hop_zenith_deg, geo.solar.sunspot_number), axis=-1)
-        loss_db = absorption_db(freq_mhz, np.nan_to_num(el), hops, index[..., None])
+        loss_db = absorption_db(freq_mhz, np.nan_to_num(table.elevation_deg), table.hops,
+                                table.absorption_index)
         p = np.where(loss_db <= settings.absorption_limit_db, p, 0.0)
-    return modes.layer, hops, el, p
+    return p
 
 
 def _caveats(geo: GoalGeometry, freq_hz: float, settings: PropagationSettings) -> tuple[str, ...]:
@@ -409,10 +452,9 @@ def band_needs(goal_geometry: GoalGeometry, freq_hz: float, settings: Propagatio
     if settings.model != geo.model:
         raise ValueError(f"band_needs: the goal was prepared for the {geo.model} model, "
                          f"not {settings.model}")
-    if geo.model == "geometry":
-        layers, hops, el, p = _geometry_modes(geo, settings)
-    else:
-        layers, hops, el, p = _climatology_modes(geo, float(freq_hz) / 1e6, settings)
+    table = geo.modes
+    layers, hops, el = table.layer, table.hops, table.elevation_deg
+    p = _mode_probability(table, float(freq_hz) / 1e6, settings)
 
     n_hours, n_points, n_modes = p.shape
     q = p.max(axis=-1)                                       # (T, N) open probability
