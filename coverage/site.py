@@ -241,7 +241,7 @@ _FEED = ("z0_ohm", "velocity_factor", "loss_db_per_100m_at_10mhz")
 _BAND = ("name", "freq_mhz", "edges_mhz")
 _GOAL = ("name", "region", "weight", "bands", "path", "clip", "avoid", "avoid_weight")
 _PROP = ("model", "month", "year", "solar_flux", "sunspot_number", "hours_utc", "min_elevation_deg",
-         "points_per_goal", "f2_height_km", "e_height_km", "seed")
+         "points_per_goal", "f2_height_km", "e_height_km", "seed", "absorption_limit_db", "fof2_maps")
 _MAP = ("lobe_peak_km", "lobe_floor_db", "ring_step_km")
 
 
@@ -630,6 +630,9 @@ def _propagation(r: _Reader, t: Any) -> PropagationSettings:
                              what="a height from 80 to 150 km"),
         seed=r.number(t, "seed", key, default=1, lo=0, hi=2**31 - 1, integer=True,
                       what="a whole number seed, 0 or more"),
+        absorption_limit_db=r.number(t, "absorption_limit_db", key, default=30.0, lo=1.0, hi=200.0,
+                                     what="a loss from 1 to 200 dB above which a mode counts as closed"),
+        fof2_maps=r.string(t, "fof2_maps", key, default="ccir", choices=("ccir", "ursi")),
     )
 
 

@@ -1,40 +1,12 @@
 """`lobeplan needs`: takeoff-angle needs per band and goal."""
 from __future__ import annotations
 
-from ..geo.paths import goal_paths
-from ..geo.regions import goal_points
+from ..plan.planner import needs_for_site
 from ..progress import ProgressBar
-from ..propagation.needs import band_needs, prepare_goal
 
 HELP = "takeoff angles each band needs to reach each goal, and the hours it is open"
 
-__all__ = ["HELP", "site_needs", "build", "format_text"]
-
-
-def site_needs(site, progress_bar: ProgressBar | None = None) -> list[tuple]:
-    """Needs of every (goal, band) pair of a site.
-
-    The heavy, band-independent part (control points, ionosphere) is done
-    once per goal.
-
-    Returns
-    -------
-    list of (Goal, Band, Needs)
-    """
-    settings = site.propagation
-    goals = [(g, site.goal_bands(g)) for g in site.goals]
-    out = []
-    for i, (goal, bands) in enumerate(goals):
-        lons, lats = goal_points(site, goal)
-        bearing, dist = goal_paths(site.station, lons, lats, goal.path)
-        callback = progress_bar.callback(i, 0.8) if progress_bar is not None else None
-        geo = prepare_goal(settings, site.station.lon_deg, site.station.lat_deg,
-                           lons, lats, bearing, dist, goal.path, progress=callback)
-        for j, band in enumerate(bands):
-            out.append((goal, band, band_needs(geo, band.freq_hz, settings)))
-            if progress_bar is not None:
-                progress_bar.set(i + 0.8 + 0.2 * (j + 1) / len(bands))
-    return out
+__all__ = ["HELP", "build", "format_text"]
 
 
 def _round(x, nd):
@@ -42,19 +14,15 @@ def _round(x, nd):
 
 
 def build(site, args) -> dict:
-    total = max(len(site.goals), 1)
-    with ProgressBar(total, "needs", enabled=not getattr(args, "json", False)) as bar:
-        rows = site_needs(site, bar)
-    caveats: list[str] = []
+    with ProgressBar(1.0, "takeoff-angle needs", enabled=not getattr(args, "json", False)) as bar:
+        rows, caveats = needs_for_site(site, lambda done, total: bar.set(done / total if total else 1.0))
     needs = []
-    for goal, band, n in rows:
-        for c in n.caveats:
-            if c not in caveats:
-                caveats.append(c)
+    for gb in rows:
+        n = gb.needs
         needs.append({
-            "band": band.name,
-            "goal": goal.name,
-            "path": goal.path,
+            "band": gb.band_name,
+            "goal": gb.goal_name,
+            "path": gb.path,
             "open_fraction": round(n.open_fraction, 4),
             "elevation_deg": {"p10": _round(n.elevation_p10, 1), "median": _round(n.elevation_median, 1),
                               "p90": _round(n.elevation_p90, 1)},
@@ -62,7 +30,7 @@ def build(site, args) -> dict:
                        "elevation_deg": round(m.elevation_deg, 1)} for m in n.modes],
             "open_hours_utc": list(n.open_hours_utc),
         })
-    return {"model": site.propagation.model, "needs": needs, "caveats": caveats}
+    return {"model": site.propagation.model, "needs": needs, "caveats": list(caveats)}
 
 
 def _hour_ranges(hours: list[int]) -> str:
