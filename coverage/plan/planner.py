@@ -5,7 +5,8 @@ Score (DESIGN.md): for goal g on band b, state s and baseline bearing theta,
     mean_gain = sum(W G) / sum(W),  G floored at -30 dBi
     advantage = mean_gain(state) - mean_gain(one vertical, same needs)
     value     = advantage - avoid_weight * advantage over the avoid regions'
-                own needs on band b (pooled), same state
+                own needs on band b (pooled), same state; the credit for keeping
+                them below one vertical is capped at 10 log10(N elements) dB
     V_gb      = the best value over the option's states (switchable array)
     score     = sum(w_g o_gb V_gb) / sum(w_g o_gb)
 
@@ -30,11 +31,22 @@ from ..grid import N_AZIMUTH
 from ..propagation.needs import Needs, band_needs, prepare_goal
 from .sweep import correlate, floored, orientations, spectrum, weighted_quantile
 
-__all__ = ["GoalBand", "OptionPlan", "Plan", "RankEntry", "GoalRow", "make_plan", "needs_for_site",
+__all__ = ["avoid_credit_cap_db", "GoalBand", "OptionPlan", "Plan", "RankEntry", "GoalRow", "make_plan", "needs_for_site",
            "in_allowed", "distinct_maxima", "centrally_symmetric", "goal_rows"]
 
 DISTINCT_DEG = 10.0  # ranking: maxima at least this far apart
 WINDOW_DB = 1.0      # orientation sensitivity: bearings within this of the best
+
+
+def avoid_credit_cap_db(n_elements: int) -> float:
+    """Most credit for keeping an avoid region below one vertical: 10 log10 N dB.
+
+    N elements add at most about 10 log10 N dB toward a goal, so a deep null
+    toward an avoid region (the -30 dBi floor lies some 35 dB under a
+    vertical) never pays more than serving the goals; a penalty for beaming
+    at an avoid region is not capped.
+    """
+    return 10.0 * np.log10(max(int(n_elements), 1))
 
 
 @dataclass(frozen=True, slots=True)
@@ -215,6 +227,7 @@ def make_plan(site, goal_bands: tuple[GoalBand, ...] | None = None,
 
     option_plans = []
     for option in spec.options:
+        credit_cap = avoid_credit_cap_db(option.n_elements)
         patterns = {}
         gain_specs = {}
         for band_name, f in bands.items():
@@ -244,7 +257,7 @@ def make_plan(site, goal_bands: tuple[GoalBand, ...] | None = None,
                     else:
                         av = _mean_and_ref(pre["avoid_spec"], pre["avoid_open"], gspec, pre["avoid_ref"],
                                            orient.step_deg)
-                    v = v - gb.avoid_weight * av
+                    v = v - gb.avoid_weight * np.maximum(av, -credit_cap)
                 per_state.append(v)
             stack = np.vstack(per_state)
             best_state[i] = np.argmax(stack, axis=0)
