@@ -32,7 +32,7 @@ from ..propagation.needs import Needs, band_needs, prepare_goal
 from .sweep import correlate, floored, orientations, spectrum, weighted_quantile
 
 __all__ = ["avoid_credit_cap_db", "GoalBand", "OptionPlan", "Plan", "RankEntry", "GoalRow", "make_plan", "needs_for_site",
-           "in_allowed", "distinct_maxima", "centrally_symmetric", "goal_rows"]
+           "in_allowed", "distinct_maxima", "score_option", "prepare_needs", "centrally_symmetric", "goal_rows"]
 
 DISTINCT_DEG = 10.0  # ranking: maxima at least this far apart
 WINDOW_DB = 1.0      # orientation sensitivity: bearings within this of the best
@@ -187,12 +187,6 @@ def _pool(parts: list[Needs]) -> Needs:
     return replace(parts[0], weights=w, open_fraction=float(w.sum()))
 
 
-def _mean_and_ref(spec_w: np.ndarray, w_sum: float, gain_spec: np.ndarray, ref_mean: float,
-                  step_deg: float) -> np.ndarray:
-    """Advantage over one vertical at every bearing."""
-    return correlate(spec_w, gain_spec, step_deg) / w_sum - ref_mean
-
-
 def _ref_mean(weights: np.ndarray, ref_gain_dbi: np.ndarray) -> float:
     return float(np.sum(weights * floored(ref_gain_dbi)[:, None]) / np.sum(weights))
 
@@ -211,63 +205,21 @@ def make_plan(site, goal_bands: tuple[GoalBand, ...] | None = None,
     bands = {gb.band_name: gb.freq_hz for gb in goal_bands}
     ref = {name: vertical_gain_dbi(spec, f) for name, f in bands.items()}
 
-    # band-independent pieces of each goal-band, computed once for all options
-    prepared = []
-    for gb in goal_bands:
-        w = gb.needs.weights
-        w_sum = float(w.sum())
-        entry = {"open": w_sum, "spec": spectrum(w) if w_sum > 0 else None,
-                 "ref": _ref_mean(w, ref[gb.band_name]) if w_sum > 0 else None}
-        aw = gb.avoid_needs.weights if gb.avoid_needs is not None else None
-        a_sum = float(aw.sum()) if aw is not None else 0.0
-        entry["avoid_open"] = a_sum
-        entry["avoid_spec"] = spectrum(aw) if a_sum > 0 else None
-        entry["avoid_ref"] = _ref_mean(aw, ref[gb.band_name]) if a_sum > 0 else None
-        prepared.append(entry)
+    prepared = prepare_needs(goal_bands, ref)  # shared by every option
 
+    method = "direct" if fixed else "fft"
     option_plans = []
     for option in spec.options:
-        credit_cap = avoid_credit_cap_db(option.n_elements)
-        patterns = {}
-        gain_specs = {}
-        for band_name, f in bands.items():
-            for s in option.states:
-                res = array_pattern(spec, option, s, f)
-                patterns[(band_name, s.name)] = res
-                gain_specs[(band_name, s.name)] = spectrum(floored(res.gain_dbi))
-        n_gb, n_t = len(goal_bands), thetas.size
-        values = np.full((n_gb, n_t), np.nan)
-        best_state = np.zeros((n_gb, n_t), dtype=int)
-        for i, (gb, pre) in enumerate(zip(goal_bands, prepared)):
-            if pre["spec"] is None:
-                continue
-            per_state = []
-            for s in option.states:
-                gspec = gain_specs[(gb.band_name, s.name)]
-                if fixed:
-                    v = _fixed_advantage(gb.needs.weights, patterns[(gb.band_name, s.name)].gain_dbi,
-                                         thetas[0], pre["ref"])
-                else:
-                    v = _mean_and_ref(pre["spec"], pre["open"], gspec, pre["ref"], orient.step_deg)
-                if pre["avoid_spec"] is not None and gb.avoid_weight > 0:
-                    if fixed:
-                        av = _fixed_advantage(gb.avoid_needs.weights,
-                                              patterns[(gb.band_name, s.name)].gain_dbi, thetas[0],
-                                              pre["avoid_ref"])
-                    else:
-                        av = _mean_and_ref(pre["avoid_spec"], pre["avoid_open"], gspec, pre["avoid_ref"],
-                                           orient.step_deg)
-                    v = v - gb.avoid_weight * np.maximum(av, -credit_cap)
-                per_state.append(v)
-            stack = np.vstack(per_state)
-            best_state[i] = np.argmax(stack, axis=0)
-            values[i] = np.max(stack, axis=0)
+        patterns = {(band_name, s.name): array_pattern(spec, option, s, f)
+                    for band_name, f in bands.items() for s in option.states}
+        values, best_state = score_option(option, patterns, goal_bands, prepared, thetas, orient.step_deg,
+                                          method)
         weights = np.array([gb.weight * pre["open"] for gb, pre in zip(goal_bands, prepared)])
         open_rows = np.isfinite(values[:, 0]) & (weights > 0)
         if open_rows.any():
             score = (weights[open_rows, None] * values[open_rows]).sum(axis=0) / weights[open_rows].sum()
         else:
-            score = np.full(n_t, np.nan)
+            score = np.full(thetas.size, np.nan)
         best_theta, best_score, window = _best(thetas, score, allowed, orient.step_deg)
         option_plans.append(OptionPlan(option.name, option.layout, option.spacing_m, thetas, score,
                                        allowed, best_theta, best_score, window, values, best_state,
@@ -276,10 +228,65 @@ def make_plan(site, goal_bands: tuple[GoalBand, ...] | None = None,
     return Plan(tuple(goal_bands), tuple(option_plans), ranking, ref, caveats, orient.step_deg, fixed)
 
 
-def _fixed_advantage(weights: np.ndarray, gain_dbi: np.ndarray, theta_deg: float, ref_mean: float
-                     ) -> np.ndarray:
-    g = _rotate(floored(gain_dbi), theta_deg)
-    return np.array([float(np.sum(weights * g) / np.sum(weights)) - ref_mean])
+def prepare_needs(goal_bands, ref: dict) -> list[dict]:
+    """Per goal-band pieces every option shares: sums, spectra, reference means."""
+    prepared = []
+    for gb in goal_bands:
+        entry = {}
+        for tag, needs in (("", gb.needs), ("avoid_", gb.avoid_needs)):
+            w = needs.weights if needs is not None else None
+            w_sum = float(w.sum()) if w is not None else 0.0
+            entry[tag + "weights"] = w
+            entry[tag + "open"] = w_sum
+            entry[tag + "spec"] = spectrum(w) if w_sum > 0 else None
+            entry[tag + "ref"] = _ref_mean(w, ref[gb.band_name]) if w_sum > 0 else None
+        prepared.append(entry)
+    return prepared
+
+
+def _advantage(weights, w_spec, w_sum, ref_mean, gain_floored, gain_spec, thetas, step_deg, method):
+    """Mean-gain advantage over one vertical at every bearing in ``thetas``.
+
+    ``fft``: the circular cross-correlation (all bearings at once).
+    ``direct``: one vectorised pass over the whole grid per bearing; used for
+    a fixed bearing and as the benchmark's baseline.
+    """
+    if method == "fft":
+        return correlate(w_spec, gain_spec, step_deg) / w_sum - ref_mean
+    return np.array([float(np.sum(weights * _rotate(gain_floored, t))) for t in thetas]) / w_sum - ref_mean
+
+
+def score_option(option, patterns, goal_bands, prepared, thetas, step_deg, method="fft"):
+    """Best value over the option's states for every goal-band and bearing.
+
+    Returns
+    -------
+    values_db : ndarray, shape (n_goalband, n_theta), NaN where never open
+    best_state : ndarray of int, same shape
+    """
+    credit_cap = avoid_credit_cap_db(option.n_elements)
+    floored_gain = {k: floored(r.gain_dbi) for k, r in patterns.items()}
+    gain_specs = {k: spectrum(g) for k, g in floored_gain.items()} if method == "fft" else {}
+    values = np.full((len(goal_bands), thetas.size), np.nan)
+    best_state = np.zeros((len(goal_bands), thetas.size), dtype=int)
+    for i, (gb, pre) in enumerate(zip(goal_bands, prepared)):
+        if pre["open"] <= 0:
+            continue
+        per_state = []
+        for s in option.states:
+            key = (gb.band_name, s.name)
+            g, gs = floored_gain[key], gain_specs.get(key)
+            v = _advantage(pre["weights"], pre["spec"], pre["open"], pre["ref"], g, gs, thetas, step_deg,
+                           method)
+            if pre["avoid_open"] > 0 and gb.avoid_weight > 0:
+                av = _advantage(pre["avoid_weights"], pre["avoid_spec"], pre["avoid_open"], pre["avoid_ref"],
+                                g, gs, thetas, step_deg, method)
+                v = v - gb.avoid_weight * np.maximum(av, -credit_cap)
+            per_state.append(v)
+        stack = np.vstack(per_state)
+        best_state[i] = np.argmax(stack, axis=0)
+        values[i] = np.max(stack, axis=0)
+    return values, best_state
 
 
 def _rotate(gain_frame: np.ndarray, theta_deg: float) -> np.ndarray:
