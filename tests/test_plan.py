@@ -284,3 +284,34 @@ def test_closed_band_gives_no_score_and_no_crash():
     plan = make_plan(loads(_site(goals, QUARTER_PAIR)))
     assert np.isfinite(plan.options[0].score_db).all()
     assert math.isfinite(plan.ranking[0].score_db)
+
+
+def test_plan_verb_json_shape_and_csv(tmp_path, capsys):
+    from lobeplan.cli import main
+
+    site = tmp_path / "site.toml"
+    site.write_text(_site(f'[[goal]]\nname = "ne"\nregion = "{_spot(45, 2500)}"\n'
+                          f'[[goal]]\nname = "sw"\nregion = "{_spot(225, 4000)}"\npath = "both"', QUARTER_PAIR))
+    assert main(["plan", str(site), "--json", "--out", str(tmp_path / "out")]) == 0
+    import json
+
+    data = json.loads(capsys.readouterr().out)
+    assert 1 <= len(data["ranking"]) <= 5
+    entry = data["ranking"][0]
+    assert {"orientation_deg", "spacing_m", "layout", "score_db", "goals"} <= set(entry)
+    assert {"goal", "band", "state", "mean_gain_dbi", "p10_gain_dbi", "advantage_db"} <= set(entry["goals"][0])
+    assert [g["path"] for g in entry["goals"]] == ["short", "short", "long"]
+    comp = data["spacing_comparison"][0]
+    assert {"spacing_m", "best_orientation_deg", "score_db"} <= set(comp)
+    scores = data["orientation_scores"][0]
+    assert len(scores["orientation_deg"]) == len(scores["score_db"]) == 360
+    # the ranking's entries are distinct maxima at least 10 deg apart, and for
+    # a pair theta and theta + 180 count as the same ground plan
+    bearings = [e["orientation_deg"] for e in data["ranking"]]
+    for i, a in enumerate(bearings):
+        for b in bearings[:i]:
+            d = abs((a - b + 180) % 360 - 180)
+            assert d >= 10 and abs(180 - d) >= 10
+    csv_lines = (tmp_path / "out" / "plan.csv").read_text().splitlines()
+    assert csv_lines[0].startswith("rank,option,layout,spacing_m,orientation_deg,score_db,goal")
+    assert len(csv_lines) == 1 + sum(len(e["goals"]) for e in data["ranking"])
