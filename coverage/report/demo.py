@@ -4,6 +4,7 @@ from __future__ import annotations
 from importlib import resources
 from pathlib import Path
 
+from . import needs as _needs
 from . import paths as _paths
 from . import plan as _plan
 
@@ -26,15 +27,20 @@ def default_out(args) -> str:
 
 
 def build(site, args) -> dict:
-    return {"paths": _paths.build(site, args), "plan": _plan.build(site, args)}
+    plan = _plan.run_plan(site, bool(getattr(args, "json", False)))
+    return {"paths": _paths.build(site, args),
+            "needs": _needs.build_from_goal_bands(site, plan.goal_bands, plan.caveats),
+            "plan": _plan.build_from_plan(site, plan)}
 
 
 def format_text(result: dict) -> str:
-    return _paths.format_text(result["paths"]) + "\n" + _plan.format_text(result["plan"])
+    return "\n".join([_paths.format_text(result["paths"]), _needs.format_text(result["needs"]),
+                      _plan.format_text(result["plan"])])
 
 
 def write_files(site, args, result, out_dir) -> list[Path]:
     from ..fileio import atomic_write_json
 
-    written = [atomic_write_json(Path(out_dir) / "paths.json", result["paths"])]
+    written = [atomic_write_json(Path(out_dir) / "paths.json", result["paths"]),
+               atomic_write_json(Path(out_dir) / "needs.json", result["needs"])]
     return written + _plan.write_files(site, args, result["plan"], out_dir)

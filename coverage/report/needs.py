@@ -6,7 +6,7 @@ from ..progress import ProgressBar
 
 HELP = "takeoff angles each band needs to reach each goal, and the hours it is open"
 
-__all__ = ["HELP", "build", "format_text"]
+__all__ = ["HELP", "build", "build_from_goal_bands", "format_text"]
 
 
 def _round(x, nd):
@@ -16,6 +16,11 @@ def _round(x, nd):
 def build(site, args) -> dict:
     with ProgressBar(1.0, "takeoff-angle needs", enabled=not getattr(args, "json", False)) as bar:
         rows, caveats = needs_for_site(site, lambda done, total: bar.set(done / total if total else 1.0))
+    return build_from_goal_bands(site, rows, caveats)
+
+
+def build_from_goal_bands(site, rows, caveats) -> dict:
+    """The verb's result from needs already computed (the planner's goal-bands)."""
     needs = []
     for gb in rows:
         n = gb.needs
