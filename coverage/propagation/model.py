@@ -14,6 +14,8 @@ class PropagationSettings:
     wrap midnight, e.g. ((20, 24), (0, 6)); the default is all day.
     Exactly one of ``solar_flux`` (12-month mean F10.7, sfu) and
     ``sunspot_number`` (12-month smoothed) is used by the climatology model.
+    Heights are the fixed reflection heights of the geometry model; the
+    climatology model takes hmF2 from the maps instead.
     """
 
     model: str = "geometry"  # geometry | climatology
@@ -27,6 +29,11 @@ class PropagationSettings:
     f2_height_km: float = 300.0
     e_height_km: float = 110.0
     seed: int = 1
+    # climatology only: a mode below 10 MHz whose daytime absorption estimate
+    # exceeds this is closed (a planning margin of our choosing, not a
+    # published value); which foF2 coefficient set PyIRI uses
+    absorption_limit_db: float = 30.0
+    fof2_maps: str = "ccir"  # ccir | ursi
 
     @property
     def hours(self) -> tuple[int, ...]:

@@ -1,0 +1,505 @@
+"""Takeoff-angle needs of a goal region on a band: the weights the planner scores.
+
+Two steps, so that the heavy part is done once per goal:
+
+1. :func:`prepare_goal` (band-independent): control points of every sampled
+   path and, for the climatology model, the ionosphere there at every hour.
+2. :func:`band_needs` (per band, cheap): which modes are open at the
+   frequency, with what probability, and at what takeoff angle; binned on
+   the angular grid of :mod:`lobeplan.grid`.
+
+Models
+------
+geometry (the default)
+    Fixed reflection heights; the lowest-order F2 mode that meets the
+    minimum elevation carries all the weight; every hour is open. No
+    ionosphere is consulted.
+climatology
+    Monthly-median foF2, hmF2 and foE (PyIRI) at the ITU-R P.533 control
+    points. For each path and hour the candidate modes are F2 with the
+    fewest hops meeting the minimum elevation and two orders more, and on
+    paths up to 4000 km E with the fewest hops and one more. A mode's
+    probability is:
+
+    - F2: P(day's MUF > f), the MUF being the lowest over the control
+      points of the M(3000)F2-anchored MUF (:func:`.muf.m3000_muf`: foF2 at
+      vertical incidence, foF2 M(3000)F2 at 3000 km, the curved-Earth
+      secant law with reflection at hmF2 for the shape in between), times P(the E layer does not screen it), the E-layer MUF for the F2
+      ray's own angle being foE sec i at the E height (highest over the
+      control points);
+    - E: P(day's E MUF > f), the E MUF foE sec i at the E height;
+    - below 10 MHz, zero if the daytime absorption estimate exceeds
+      ``absorption_limit_db`` (George and Bradley's form with the absorption
+      index averaged over the reflection points of all hops).
+
+    The modes of one path and hour rise and fall with the same ionosphere,
+    so they are taken as fully correlated: the path is open with the
+    probability of its likeliest mode, and that weight is shared among the
+    modes in proportion to their own probabilities.
+
+References
+----------
+ITU-R P.533 (control points, mode set, absorption form); ITU-R P.1240
+(decile factors); Davies (1990) ch. 6 (secant law with curvature);
+George and Bradley (1974) (absorption); Forsythe et al. (2023) (PyIRI).
+See :mod:`.hops`, :mod:`.muf` and :mod:`.climatology` for the details.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Callable
+
+import numpy as np
+
+from ..grid import N_AZIMUTH, N_ELEVATION
+from . import climatology as clim
+from .hops import incidence_secant, min_hops, path_modes
+from .model import PropagationSettings
+from .muf import (E_DECILE_FACTORS, F2_DECILE_FACTORS, absorption_db, absorption_index,
+                  control_point_distances_km, control_points, m3000_muf, open_probability,
+                  secant_law_muf)
+
+__all__ = ["GoalGeometry", "ModeTable", "ModeShare", "Needs", "prepare_goal", "band_needs",
+           "ABSORPTION_BELOW_HZ", "OPEN_HOUR_FRACTION"]
+
+ABSORPTION_BELOW_HZ = 10e6
+"""The daytime absorption estimate is applied below this frequency only."""
+
+OPEN_HOUR_FRACTION = 0.5
+"""An hour is listed as open when at least this share of the goal's points
+is open on it (probability-weighted)."""
+
+MODELS = ("geometry", "climatology")
+PATHS = ("short", "long")
+# guard rails on the map hmF2 used as a mirror height (km); the maps stay
+# well inside (about 230..450 km), this only keeps the geometry defined
+_HMF2_LIMITS_KM = (150.0, 600.0)
+
+Progress = Callable[[int, int], None]
+
+
+def _frozen(a, dtype=float) -> np.ndarray:
+    out = np.array(a, dtype=dtype)
+    out.flags.writeable = False
+    return out
+
+
+@dataclass(frozen=True, slots=True)
+class GoalGeometry:
+    """Band-independent part of a goal's needs (see :func:`prepare_goal`).
+
+    Attributes
+    ----------
+    model : str
+        "geometry" or "climatology".
+    path : str
+        "short" or "long".
+    station_lon_deg, station_lat_deg : float
+    lons_deg, lats_deg, bearing_deg, distance_km : ndarray, shape (n_points,)
+        The sampled goal points and their paths (bearing at the station,
+        ground distance along the path in use).
+    hours_utc : tuple of int
+        The UT hours evaluated (each at its middle, h + 0.5).
+    control_lons_deg, control_lats_deg : ndarray, shape (n_points, 2)
+        ITU-R P.533 control points of each path.
+    ionosphere : climatology.Ionosphere or None
+        For the climatology model: arrays of shape (n_hours, n_points, 2),
+        the last axis the two control points.
+    hop_zenith_deg : ndarray or None
+        For the climatology model, shape (n_hours, n_points, k): solar
+        zenith angle at the reflection point of each hop of the
+        lowest-order F2 mode at the nominal height (NaN past a path's own
+        hop count), for the absorption estimate.
+    solar : climatology.SolarInput or None
+    year, month : int
+    modes : ModeTable
+        Candidate modes with their MUFs, band-independent.
+    """
+
+    model: str
+    path: str
+    station_lon_deg: float
+    station_lat_deg: float
+    lons_deg: np.ndarray
+    lats_deg: np.ndarray
+    bearing_deg: np.ndarray
+    distance_km: np.ndarray
+    hours_utc: tuple[int, ...]
+    control_lons_deg: np.ndarray
+    control_lats_deg: np.ndarray
+    ionosphere: clim.Ionosphere | None
+    hop_zenith_deg: np.ndarray | None
+    solar: clim.SolarInput | None
+    year: int
+    month: int
+    modes: "ModeTable"
+
+
+@dataclass(frozen=True, slots=True)
+class ModeShare:
+    """One propagation mode's part of a goal's needs.
+
+    ``share`` is the mode's part of the open weight (the shares sum to 1);
+    ``elevation_deg`` its weighted median takeoff angle over the goal's
+    points and hours.
+    """
+
+    layer: str
+    hops: int
+    share: float
+    elevation_deg: float
+
+
+@dataclass(frozen=True, slots=True)
+class Needs:
+    """Takeoff-angle needs of one goal on one band.
+
+    Attributes
+    ----------
+    weights : ndarray, shape (91, 360)
+        Over (elevation 0..90 deg, true azimuth 0..359 deg) at 1 deg, the
+        grid of :mod:`lobeplan.grid`; the sum is ``open_fraction``. Each
+        (point, hour) contributes its open probability divided by
+        n_points x n_hours, shared among its open modes; azimuth bin =
+        round(bearing) % 360, elevation bin = round(takeoff angle).
+    open_fraction : float
+        Share of sampled points x hours with an open mode (0..1).
+    elevation_p10, elevation_median, elevation_p90 : float or None
+        Weighted deciles and median of the takeoff angle (deg); None when
+        the band is never open.
+    modes : tuple of ModeShare
+        Largest share first.
+    open_hours_utc : tuple of int
+        Hours with at least ``OPEN_HOUR_FRACTION`` of the goal open.
+    hours_utc : tuple of int
+        The hours evaluated.
+    hour_open_fraction : tuple of float
+        Open fraction of each hour of ``hours_utc``.
+    model : str
+    freq_hz : float
+    caveats : tuple of str
+        Plain sentences on what the figures do not include.
+    """
+
+    weights: np.ndarray
+    open_fraction: float
+    elevation_p10: float | None
+    elevation_median: float | None
+    elevation_p90: float | None
+    modes: tuple[ModeShare, ...]
+    open_hours_utc: tuple[int, ...]
+    hours_utc: tuple[int, ...]
+    hour_open_fraction: tuple[float, ...]
+    model: str
+    freq_hz: float
+    caveats: tuple[str, ...]
+
+
+def _check(settings: PropagationSettings, path: str) -> None:
+    if settings.model not in MODELS:
+        raise ValueError(f"propagation.model: expected one of {', '.join(MODELS)}, not {settings.model!r}")
+    if path not in PATHS:
+        raise ValueError(f"path: expected 'short' or 'long', not {path!r}")
+    if settings.model == "climatology":
+        lo, hi = clim.YEAR_RANGE
+        if not lo <= settings.year <= hi:
+            raise ValueError(f"propagation.year: {settings.year} is outside {lo}..{hi}, "
+                             "the range of PyIRI's magnetic field model")
+        if not 1 <= settings.month <= 12:
+            raise ValueError(f"propagation.month: {settings.month} is not 1..12")
+
+
+def prepare_goal(settings: PropagationSettings, station_lon_deg: float, station_lat_deg: float,
+                 lons_deg, lats_deg, bearing_deg, distance_km, path: str,
+                 progress: Progress | None = None) -> GoalGeometry:
+    """Control points and (for climatology) the ionosphere of a goal's paths.
+
+    Done once per goal and reused for every band.
+
+    Parameters
+    ----------
+    settings : PropagationSettings
+    station_lon_deg, station_lat_deg : float
+        The station (deg).
+    lons_deg, lats_deg : array_like, shape (n_points,)
+        Sampled goal points (deg).
+    bearing_deg, distance_km : array_like, shape (n_points,)
+        Bearing at the station and ground distance of each path, for the
+        path in use (the long path: bearing + 180, 2 pi R - short distance).
+    path : {"short", "long"}
+    progress : callable(done, total), optional
+        Called as the work advances (for a progress bar at the edge).
+
+    Returns
+    -------
+    GoalGeometry
+
+    Raises
+    ------
+    ValueError
+        On an unknown model or path, a year outside PyIRI's range, arrays of
+        different shapes, or a climatology without solar input.
+
+    References
+    ----------
+    ITU-R P.533 (control points); Forsythe et al. (2023) (PyIRI).
+    """
+    _check(settings, path)
+    lons = np.asarray(lons_deg, dtype=float).ravel()
+    lats = np.asarray(lats_deg, dtype=float).ravel()
+    bearing = np.asarray(bearing_deg, dtype=float).ravel()
+    dist = np.asarray(distance_km, dtype=float).ravel()
+    if not lons.size == lats.size == bearing.size == dist.size:
+        raise ValueError("prepare_goal: lons_deg, lats_deg, bearing_deg and distance_km differ in length")
+    total = 3 if settings.model == "climatology" else 1
+    if progress is not None:
+        progress(0, total)
+
+    # control-point positions use the nominal F2 height: P.533 places them
+    # by the lowest-order hop before any ionosphere is known
+    n0 = min_hops(dist, settings.f2_height_km, settings.min_elevation_deg)
+    hop_km = dist / n0
+    along = control_point_distances_km(dist, hop_km)
+    cp_lon, cp_lat = control_points(station_lon_deg, station_lat_deg, bearing, along)
+    if progress is not None:
+        progress(1, total)
+
+    hours = tuple(settings.hours)
+    iono = None
+    solar = None
+    hop_zenith = None
+    if settings.model == "climatology":
+        solar = clim.solar_input(settings.solar_flux, settings.sunspot_number)
+        ut = np.asarray(hours, dtype=float) + 0.5
+        raw = clim.ionosphere(settings.year, settings.month, ut, cp_lon.ravel(), cp_lat.ravel(),
+                              solar.flux_sfu, settings.fof2_maps)
+        shape = (len(hours), lons.size, 2)
+        iono = clim.Ionosphere(
+            hours_utc=_frozen(ut),
+            fof2_mhz=_frozen(raw.fof2_mhz.reshape(shape)),
+            hmf2_km=_frozen(raw.hmf2_km.reshape(shape)),
+            m3000f2=_frozen(raw.m3000f2.reshape(shape)),
+            foe_mhz=_frozen(raw.foe_mhz.reshape(shape)),
+            solar_zenith_deg=_frozen(raw.solar_zenith_deg.reshape(shape)),
+        )
+        if progress is not None:
+            progress(2, total)
+        # the absorption estimate looks at every hop, not only the two
+        # control points (beyond 4000 km those are the first and last hop
+        # midpoints, so the sets agree there)
+        k = int(n0.max()) if n0.size else 1
+        valid = np.arange(k)[None, :] < n0[:, None]
+        along_hops = np.where(valid, (np.arange(k)[None, :] + 0.5) * hop_km[:, None], 0.0)
+        hop_lon, hop_lat = control_points(station_lon_deg, station_lat_deg, bearing, along_hops)
+        chi = clim.solar_zenith_deg(settings.year, settings.month, ut, hop_lon.ravel(), hop_lat.ravel())
+        chi = chi.reshape(len(hours), lons.size, k)
+        hop_zenith = _frozen(np.where(valid[None, :, :], chi, np.nan))
+        table = _climatology_table(dist, iono, hop_zenith, solar.sunspot_number, settings)
+        if progress is not None:
+            progress(3, total)
+    else:
+        table = _geometry_table(dist, len(hours), settings)
+    return GoalGeometry(
+        model=settings.model, path=path,
+        station_lon_deg=float(station_lon_deg), station_lat_deg=float(station_lat_deg),
+        lons_deg=_frozen(lons), lats_deg=_frozen(lats), bearing_deg=_frozen(bearing),
+        distance_km=_frozen(dist), hours_utc=hours,
+        control_lons_deg=_frozen(cp_lon), control_lats_deg=_frozen(cp_lat),
+        ionosphere=iono, hop_zenith_deg=hop_zenith, solar=solar, year=int(settings.year), month=int(settings.month),
+        modes=table,
+    )
+
+
+def _weighted_quantiles(values: np.ndarray, weights: np.ndarray, qs) -> list[float]:
+    order = np.argsort(values, kind="stable")
+    v = values[order]
+    w = weights[order]
+    cum = np.cumsum(w) - 0.5 * w
+    return [float(np.interp(q, cum / w.sum(), v)) for q in qs]
+
+
+@dataclass(frozen=True, slots=True)
+class ModeTable:
+    """Band-independent candidate modes of every path and hour.
+
+    Attributes
+    ----------
+    layer : tuple of str, length n_modes
+    hops : ndarray of int, shape (n_hours, n_points, n_modes)
+        0 where the mode does not exist.
+    elevation_deg : ndarray, shape (n_hours, n_points, n_modes)
+    muf_mhz : ndarray or None, shape (n_hours, n_points, n_modes)
+        Monthly-median MUF of the mode (lowest over the control points);
+        None for the geometry model.
+    screen_muf_mhz : ndarray or None, same shape
+        E-layer MUF for an F2 mode's own ray (highest over the control
+        points); 0 for E modes; None for the geometry model.
+    absorption_index : ndarray or None, shape (n_hours, n_points, 1)
+        George-Bradley index averaged over the hops' reflection points.
+    """
+
+    layer: tuple[str, ...]
+    hops: np.ndarray
+    elevation_deg: np.ndarray
+    muf_mhz: np.ndarray | None
+    screen_muf_mhz: np.ndarray | None
+    absorption_index: np.ndarray | None
+
+
+def _geometry_table(distance_km: np.ndarray, n_hours: int, settings: PropagationSettings) -> ModeTable:
+    modes = path_modes(distance_km, settings.f2_height_km, settings.e_height_km,
+                       settings.min_elevation_deg, extra_f2_hops=0, extra_e_hops=0)
+    shape = (n_hours, distance_km.size, 1)
+    return ModeTable(("F2",), _frozen(np.broadcast_to(modes.hops[None, :, :1], shape), int),
+                     _frozen(np.broadcast_to(modes.elevation_deg[None, :, :1], shape)), None, None, None)
+
+
+def _climatology_table(distance_km: np.ndarray, io: clim.Ionosphere, hop_zenith_deg: np.ndarray,
+                       sunspot_number: float, settings: PropagationSettings) -> ModeTable:
+    fo = io.fof2_mhz                                   # (T, N, 2)
+    hr = np.clip(io.hmf2_km, *_HMF2_LIMITS_KM)         # (T, N, 2)
+    foe = io.foe_mhz
+    he = settings.e_height_km
+    d = np.broadcast_to(distance_km[None, :], fo.shape[:2])
+    modes = path_modes(d, hr.mean(axis=-1), he, settings.min_elevation_deg,
+                       extra_f2_hops=2, extra_e_hops=1, max_e_distance_km=4000.0)
+    hops = modes.hops                                  # (T, N, M)
+    el = modes.elevation_deg
+    muf = np.zeros(hops.shape)
+    screen = np.zeros(hops.shape)
+    safe_hops = np.maximum(hops, 1)
+    for j, layer in enumerate(modes.layer):
+        hop_km = d / safe_hops[..., j]
+        if layer == "F2":
+            muf[..., j] = np.min(m3000_muf(fo, io.m3000f2, hop_km[..., None], hr), axis=-1)
+            # E screening: the E layer's MUF for this ray's own angle
+            screen[..., j] = np.max(foe * incidence_secant(el[..., j], he)[..., None], axis=-1)
+        else:
+            muf[..., j] = np.min(secant_law_muf(foe, hop_km[..., None], he), axis=-1)
+    muf = np.where(hops > 0, muf, 0.0)
+    index = np.nanmean(absorption_index(hop_zenith_deg, sunspot_number), axis=-1)[..., None]
+    return ModeTable(modes.layer, _frozen(hops, int), _frozen(el), _frozen(muf), _frozen(screen),
+                     _frozen(index))
+
+
+def _mode_probability(table: ModeTable, freq_mhz: float, settings: PropagationSettings) -> np.ndarray:
+    if table.muf_mhz is None:  # geometry: the lowest-order mode, always
+        return np.ones(table.hops.shape)
+    p = np.zeros(table.hops.shape)
+    f2 = np.array([layer == "F2" for layer in table.layer])
+    p[..., f2] = (open_probability(freq_mhz, table.muf_mhz[..., f2], F2_DECILE_FACTORS)
+                  * (1.0 - open_probability(freq_mhz, table.screen_muf_mhz[..., f2], E_DECILE_FACTORS)))
+    p[..., ~f2] = open_probability(freq_mhz, table.muf_mhz[..., ~f2], E_DECILE_FACTORS)
+    p = np.where(table.hops > 0, p, 0.0)
+    if freq_mhz * 1e6 < ABSORPTION_BELOW_HZ:
+        loss_db = absorption_db(freq_mhz, np.nan_to_num(table.elevation_deg), table.hops,
+                                table.absorption_index)
+        p = np.where(loss_db <= settings.absorption_limit_db, p, 0.0)
+    return p
+
+
+def _caveats(geo: GoalGeometry, freq_hz: float, settings: PropagationSettings) -> tuple[str, ...]:
+    if geo.model == "geometry":
+        return (
+            "No ionosphere was consulted: fixed reflection heights "
+            f"(F2 {settings.f2_height_km:g} km, E {settings.e_height_km:g} km), the lowest-order F2 "
+            f"mode meeting {settings.min_elevation_deg:g} deg carries all the weight, "
+            "and every hour counts as open.",
+        )
+    s = geo.solar
+    out = [
+        f"Monthly-median ionosphere from PyIRI ({settings.fof2_maps.upper()} foF2 maps) for "
+        f"{geo.year}-{geo.month:02d} at F10.7 {s.flux_sfu:.0f} sfu; the day-to-day spread uses fixed "
+        f"decile factors ({F2_DECILE_FACTORS[0]:g}/{F2_DECILE_FACTORS[1]:g} F2, "
+        f"{E_DECILE_FACTORS[0]:g}/{E_DECILE_FACTORS[1]:g} E).",
+        "Sporadic E, the F1 layer, auroral and polar effects, noise and power are not modelled.",
+    ]
+    if freq_hz < ABSORPTION_BELOW_HZ:
+        out.append("The lowest usable frequency is not modelled beyond a daytime absorption estimate "
+                   f"below {ABSORPTION_BELOW_HZ / 1e6:g} MHz: a mode counts as closed when it exceeds "
+                   f"{settings.absorption_limit_db:g} dB.")
+    else:
+        out.append("The lowest usable frequency is not modelled: no absorption is estimated at "
+                   f"{ABSORPTION_BELOW_HZ / 1e6:g} MHz and above.")
+    if s.clamped:
+        lo, hi = clim.SOLAR_FLUX_RANGE_SFU
+        out.append(f"Solar input {s.requested_sfu:.0f} sfu was clamped to {s.flux_sfu:.0f} sfu: the maps "
+                   f"are used only within {lo:.0f}..{hi:.0f} sfu (sunspot number 0..150).")
+    return tuple(out)
+
+
+def band_needs(goal_geometry: GoalGeometry, freq_hz: float, settings: PropagationSettings) -> Needs:
+    """Takeoff-angle needs of a prepared goal at one frequency.
+
+    Parameters
+    ----------
+    goal_geometry : GoalGeometry
+        From :func:`prepare_goal` with the same settings.
+    freq_hz : float
+        Operating frequency (Hz).
+    settings : PropagationSettings
+
+    Returns
+    -------
+    Needs
+
+    References
+    ----------
+    ITU-R P.533 (mode set, absorption form); ITU-R P.1240 (decile
+    factors); Davies (1990) (secant law); George and Bradley (1974).
+    """
+    geo = goal_geometry
+    if settings.model != geo.model:
+        raise ValueError(f"band_needs: the goal was prepared for the {geo.model} model, "
+                         f"not {settings.model}")
+    table = geo.modes
+    layers, hops, el = table.layer, table.hops, table.elevation_deg
+    p = _mode_probability(table, float(freq_hz) / 1e6, settings)
+
+    n_hours, n_points, n_modes = p.shape
+    q = p.max(axis=-1)                                       # (T, N) open probability
+    total_p = p.sum(axis=-1)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        share = np.where(total_p[..., None] > 0, p / total_p[..., None], 0.0)
+    w = q[..., None] * share / max(n_hours * n_points, 1)   # (T, N, M)
+
+    live = w > 0
+    el_bin = np.clip(np.rint(np.where(live, el, 0.0)), 0, N_ELEVATION - 1).astype(int)
+    az_bin = np.broadcast_to((np.rint(geo.bearing_deg).astype(int) % N_AZIMUTH)[None, :, None], w.shape)
+    flat = (el_bin * N_AZIMUTH + az_bin)[live]
+    grid = np.bincount(flat, weights=w[live], minlength=N_ELEVATION * N_AZIMUTH)
+    weights = _frozen(grid.reshape(N_ELEVATION, N_AZIMUTH))
+
+    open_fraction = float(q.mean()) if q.size else 0.0
+    hour_fraction = q.mean(axis=1) if n_points else np.zeros(n_hours)
+    open_hours = tuple(h for h, fr in zip(geo.hours_utc, hour_fraction) if fr >= OPEN_HOUR_FRACTION)
+
+    p10 = med = p90 = None
+    mode_list: list[ModeShare] = []
+    if live.any():
+        wl = w[live]
+        el_l = el[live]
+        p10, med, p90 = _weighted_quantiles(el_l, wl, (0.1, 0.5, 0.9))
+        layer_idx = np.broadcast_to(np.arange(n_modes), w.shape)[live]
+        layer_name = np.array(layers)[layer_idx]
+        hop_l = hops[live]
+        total = wl.sum()
+        for layer in ("F2", "E"):
+            for n in np.unique(hop_l[layer_name == layer]):
+                sel = (layer_name == layer) & (hop_l == n)
+                mode_list.append(ModeShare(layer, int(n), float(wl[sel].sum() / total),
+                                           _weighted_quantiles(el_l[sel], wl[sel], (0.5,))[0]))
+        mode_list.sort(key=lambda m: (-m.share, m.layer, m.hops))
+
+    return Needs(
+        weights=weights,
+        open_fraction=open_fraction,
+        elevation_p10=p10, elevation_median=med, elevation_p90=p90,
+        modes=tuple(mode_list),
+        open_hours_utc=open_hours,
+        hours_utc=tuple(geo.hours_utc),
+        hour_open_fraction=tuple(float(x) for x in hour_fraction),
+        model=geo.model,
+        freq_hz=float(freq_hz),
+        caveats=_caveats(geo, float(freq_hz), settings),
+    )
