@@ -128,14 +128,22 @@ def needs_for_site(site, progress: Callable[[int, int], None] | None = None
     """Need weights for every (goal, band) of the site, avoid regions pooled."""
     prop = site.propagation
     geometries: dict[tuple, object] = {}
+    wanted = {(g.region, g.clip, g.path) for g in site.goals}
+    wanted |= {(a, None, g.path) for g in site.goals for a in g.avoid}
+    n_total = len(wanted)
 
     def geometry(text: str, clip, key: str, path: str):
         k = (text, clip, path)
         if k not in geometries:
             lons, lats = region_points(site, text, clip, key)
             bearing, dist = goal_paths(site.station, lons, lats, path)
+            base = len(geometries)
+            inner = None
+            if progress is not None:
+                def inner(done: int, total: int, base=base) -> None:
+                    progress(base + (done / total if total else 1.0), n_total)
             geometries[k] = prepare_goal(prop, site.station.lon_deg, site.station.lat_deg, lons, lats,
-                                         bearing, dist, path, progress=progress)
+                                         bearing, dist, path, progress=inner)
         return geometries[k]
 
     out = []

@@ -29,27 +29,16 @@ def _r(x, nd: int = 3):
 
 
 @functools.lru_cache(maxsize=2)
-def run_plan(site):
-    """The plan of the site (with a progress bar on a terminal), kept for write_files."""
+def run_plan(site, quiet: bool = False):
+    """The plan of the site, kept for write_files; a progress bar on a terminal."""
     from ..plan.planner import make_plan
+    from ..progress import ProgressBar
 
-    progress = _progress()
+    bar = ProgressBar(1.0, "takeoff-angle needs", enabled=not quiet)
     try:
-        return make_plan(site, progress=progress)
+        return make_plan(site, progress=lambda done, total: bar.set(done / total if total else 1.0))
     finally:
-        if progress is not None and hasattr(progress, "close"):
-            progress.close()
-
-
-def _progress():
-    try:
-        from ..progress import ProgressBar  # type: ignore[attr-defined]
-    except ImportError:
-        return None
-    try:
-        return ProgressBar("needs")
-    except TypeError:
-        return None
+        bar.close()
 
 
 def _goal_row(g) -> dict:
@@ -94,7 +83,7 @@ def build_from_plan(site, plan) -> dict:
 
 
 def build(site, args=None) -> dict:
-    return build_from_plan(site, run_plan(site))
+    return build_from_plan(site, run_plan(site, bool(getattr(args, "json", False))))
 
 
 def _f(x, spec: str = "+6.2f", none: str = "—") -> str:
