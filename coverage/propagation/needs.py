@@ -60,10 +60,14 @@ from .muf import (E_DECILE_FACTORS, F2_DECILE_FACTORS, absorption_db, absorption
                   secant_law_muf)
 
 __all__ = ["GoalGeometry", "ModeTable", "ModeShare", "Needs", "prepare_goal", "band_needs",
-           "ABSORPTION_BELOW_HZ", "OPEN_HOUR_FRACTION"]
+           "ABSORPTION_BELOW_HZ", "MIN_PROBABILITY", "OPEN_HOUR_FRACTION"]
 
 ABSORPTION_BELOW_HZ = 10e6
 """The daytime absorption estimate is applied below this frequency only."""
+
+MIN_PROBABILITY = 1e-3
+"""Mode probabilities below this count as closed: the normal tail of the
+day-to-day spread would otherwise leave every band faintly open."""
 
 OPEN_HOUR_FRACTION = 0.5
 """An hour is listed as open when at least this share of the goal's points
@@ -390,7 +394,7 @@ def _mode_probability(table: ModeTable, freq_mhz: float, settings: PropagationSe
     p[..., f2] = (open_probability(freq_mhz, table.muf_mhz[..., f2], F2_DECILE_FACTORS)
                   * (1.0 - open_probability(freq_mhz, table.screen_muf_mhz[..., f2], E_DECILE_FACTORS)))
     p[..., ~f2] = open_probability(freq_mhz, table.muf_mhz[..., ~f2], E_DECILE_FACTORS)
-    p = np.where(table.hops > 0, p, 0.0)
+    p = np.where((table.hops > 0) & (p >= MIN_PROBABILITY), p, 0.0)
     if freq_mhz * 1e6 < ABSORPTION_BELOW_HZ:
         loss_db = absorption_db(freq_mhz, np.nan_to_num(table.elevation_deg), table.hops,
                                 table.absorption_index)
