@@ -161,10 +161,14 @@ def _fmt_db(x: float | None) -> str:
     return "closed" if x is None else f"{x:+.1f} dB"
 
 
-def _quiet_bearing(scene: BandScene) -> float:
-    """A bearing where the lobes are shortest, for the ring labels."""
-    total = sum(lobe.radius_km for lobe in scene.lobes)
-    for b in (scene.orientation_deg, scene.orientation_deg + 180.0):  # keep off the baseline
+def _quiet_bearing(scene: BandScene, busy_deg=()) -> float:
+    """A bearing where the lobes are shortest, for the ring labels, away from
+    the baseline and from the bearings in ``busy_deg`` (goal labels)."""
+    # horizontal labels stack best on a near-vertical line
+    # (within 35 deg of north or south; rings 2500 km apart leave no room side by side)
+    total = sum(lobe.radius_km for lobe in scene.lobes) + 4000.0 * np.abs(np.sin(np.radians(AZIMUTH_DEG)))
+    total = np.where(np.abs(np.sin(np.radians(AZIMUTH_DEG))) > math.sin(math.radians(35.0)), total + 1e8, total)
+    for b in (scene.orientation_deg, scene.orientation_deg + 180.0, *busy_deg):
         near = np.abs((AZIMUTH_DEG - b + 180.0) % 360.0 - 180.0) < 12.0
         total = np.where(near, total + 1e9, total)
     smooth = np.convolve(np.concatenate([total[-15:], total, total[:15]]), np.ones(31) / 31, "valid")
@@ -207,7 +211,7 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
     ax.add_collection(PathCollection(fills, facecolor=LAND, edgecolor="none", linewidth=0, zorder=1,
                                      transform=ax.transData))
     ax.add_collection(PathCollection(lines, facecolor="none", edgecolor=LAND_EDGE, linewidth=0.45,
-                                     zorder=1.5, transform=ax.transData))
+                                     zorder=2.3, transform=ax.transData))
 
     cmap = _advantage_cmap()
     from matplotlib.colors import Normalize
@@ -218,12 +222,12 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
         closed = g.advantage_db is None
         face = CLOSED if closed else cmap(norm(g.advantage_db))
         for p in _paths(proj, src, g.geometry):
-            ax.add_patch(PathPatch(p, facecolor=face, edgecolor="none", alpha=0.9, zorder=2,
+            ax.add_patch(PathPatch(p, facecolor=face, edgecolor="none", alpha=0.8, zorder=2,
                                    hatch="...." if closed else None, gid=f"goal:{g.name}"))
         segs = outline_lines(g.geometry)
         if segs:
             for p in _paths(proj, src, MultiLineString(segs)):
-                ax.add_patch(PathPatch(p, facecolor="none", edgecolor=INK, linewidth=0.7, zorder=2.2))
+                ax.add_patch(PathPatch(p, facecolor="none", edgecolor=INK, linewidth=0.7, zorder=2.35))
         label_spots.append((g, _label_point(proj, src, g.geometry)))
 
     for a in scene.avoid:
@@ -232,7 +236,7 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
                                    zorder=2.4, gid=f"avoid:{a.region}"))
 
     # range rings, labelled along the quietest bearing
-    quiet = _quiet_bearing(scene)
+    quiet = _quiet_bearing(scene, [math.degrees(math.atan2(p[0], p[1])) for _, p in label_spots if p])
     t = np.linspace(0.0, 360.0, 361)
     k = 1
     while k * scene.ring_step_km < RIM_KM - 0.25 * scene.ring_step_km:
@@ -270,8 +274,13 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
             value = " / ".join(f"{r[0]} {_fmt_db(r[2])}" for r in g.rows)
         else:
             value = _fmt_db(g.advantage_db)
-        ax.text(spot[0], spot[1], f"{g.name}\n{value}", fontsize=7, ha="center", va="center", color=INK,
-                zorder=7, linespacing=1.1, path_effects=_halo(2.5))
+        x, y, size_m = spot
+        offset = (0.0, 0.0)
+        if size_m < 3.0e6:  # a small region: put the label beside it, away from the station
+            rr = math.hypot(x, y) or 1.0
+            offset = (30.0 * x / rr, 30.0 * y / rr)
+        ax.annotate(f"{g.name}\n{value}", (x, y), xytext=offset, textcoords="offset points", fontsize=7,
+                    ha="center", va="center", color=INK, zorder=7, linespacing=1.1, path_effects=_halo(2.5))
 
     _rim(ax)
     _title_block(fig, scene, date_text, w_in, h_in)
@@ -284,6 +293,8 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
 
 
 def _label_point(proj, src, geom):
+    """(x, y, size) in map metres: a point inside the largest part, and the
+    larger side of the region's projected bounding box."""
     parts = list(getattr(geom, "geoms", [geom]))
     if not parts:
         return None
@@ -292,7 +303,11 @@ def _label_point(proj, src, geom):
     x, y = proj.transform_point(pt.x, pt.y, src)
     if not (np.isfinite(x) and np.isfinite(y)):
         return None
-    return float(x), float(y)
+    projected = proj.project_geometry(geom, src)
+    if projected.is_empty:
+        return None
+    x0, y0, x1, y1 = projected.bounds
+    return float(x), float(y), float(max(x1 - x0, y1 - y0))
 
 
 def _rim(ax) -> None:
@@ -350,7 +365,7 @@ def _legends(fig, scene: BandScene, cmap, norm, diam: float, map_bottom: float, 
     # lobe scale: a ruler drawn at the map's own scale, in dBi
     km_per_in = 2.0 * RIM_KM / diam
     length_in = scene.lobe_peak_km / km_per_in
-    sax = fig.add_axes([0.7 / w_in, (y_top - 1.25) / h_in, length_in / w_in, 0.5 / h_in], gid="lobe-scale")
+    sax = fig.add_axes([0.7 / w_in, (y_top - 1.5) / h_in, length_in / w_in, 0.5 / h_in], gid="lobe-scale")
     sax.set_xlim(0.0, scene.lobe_peak_km)
     sax.set_ylim(0.0, 1.0)
     sax.axis("off")
@@ -400,6 +415,28 @@ def draw_map(scene: BandScene, path: str | Path, date_text: str, paper: str = "a
             meta = {"Creator": "lobeplan", "Date": None}
         elif suffix == ".pdf":
             meta = {"Creator": "lobeplan", "CreationDate": None}
+        if suffix == ".png":
+            return _save_png_palette(fig, path, dpi)
         return atomic_savefig(fig, path, dpi=dpi, metadata=meta)
     finally:
         plt.close(fig)
+
+
+def _save_png_palette(fig, path, dpi: int) -> Path:
+    """PNG with a 256-colour palette: a quarter of the RGBA size, no visible loss
+    on flat map colours (checked by eye on the gallery)."""
+    import io
+
+    from PIL import Image
+
+    from ..fileio import atomic_write_bytes
+
+    raw = io.BytesIO()
+    fig.savefig(raw, format="png", dpi=dpi, metadata={"Software": "lobeplan"})
+    raw.seek(0)
+    with Image.open(raw) as im:
+        small = im.convert("RGB").quantize(colors=256, method=Image.Quantize.FASTOCTREE,
+                                           dither=Image.Dither.NONE)
+    out = io.BytesIO()
+    small.save(out, format="PNG", optimize=True)
+    return atomic_write_bytes(path, out.getvalue())
