@@ -166,6 +166,10 @@ def _save(fig, path, dpi: int) -> Path:
     plt = _pyplot()
     try:
         suffix = Path(path).suffix.lower()
+        if suffix == ".png":
+            from .azimap import save_png_palette
+
+            return save_png_palette(fig, path, dpi)
         meta = {"Software": "lobeplan"} if suffix == ".png" else {"Creator": "lobeplan"}
         if suffix == ".pdf":
             meta["CreationDate"] = None
