@@ -10,11 +10,15 @@ from . import plan as _plan
 
 HELP = "run the whole job on the shipped demo site (an invented scenario); writes to ./maps"
 
-__all__ = ["HELP", "add_arguments", "site_path", "default_out", "build", "format_text", "write_files"]
+__all__ = ["HELP", "add_arguments", "check_arguments", "site_path", "default_out", "build", "format_text", "write_files"]
 
 
 def add_arguments(p) -> None:
     _plan.add_arguments(p)
+
+
+def check_arguments(args) -> None:
+    _plan.check_arguments(args)
 
 
 def site_path(args) -> Path:
@@ -39,6 +43,7 @@ def format_text(result: dict) -> str:
 
 
 def write_files(site, args, result, out_dir) -> list[Path]:
+    """paths.json, then everything of the plan: results, maps, panels, GeoJSON."""
     from ..fileio import atomic_write_json
 
     written = [atomic_write_json(Path(out_dir) / "paths.json", result["paths"]),

@@ -11,12 +11,18 @@ from ..safety import CAUTIONS
 
 HELP = "rank baseline bearings and spacings against the goals; per-goal switch states"
 
-__all__ = ["HELP", "add_arguments", "build", "build_from_plan", "format_text", "write_files", "run_plan"]
+__all__ = ["HELP", "add_arguments", "check_arguments", "build", "build_from_plan", "format_text", "write_files", "run_plan"]
 
 
 def add_arguments(p) -> None:
     p.add_argument("--date", default=None, metavar="YYYY-MM-DD",
                    help="date printed on maps (default: today); results carry none")
+
+
+def check_arguments(args) -> None:
+    from .map import map_date
+
+    map_date(args)  # a bad --date is refused before any work is done
 
 
 def _r(x, nd: int = 3):
@@ -147,7 +153,11 @@ def _csv(result: dict) -> str:
 
 
 def write_files(site, args, result, out_dir) -> list[Path]:
+    """plan.json and plan.csv, then the maps (PNG per band), panels and GeoJSON."""
     from ..fileio import atomic_write_json, atomic_write_text
+    from .map import write_plan_figures
 
     out = Path(out_dir)
-    return [atomic_write_json(out / "plan.json", result), atomic_write_text(out / "plan.csv", _csv(result))]
+    written = [atomic_write_json(out / "plan.json", result), atomic_write_text(out / "plan.csv", _csv(result))]
+    plan = run_plan(site, bool(getattr(args, "json", False)))
+    return written + write_plan_figures(site, plan, args, out)
