@@ -62,6 +62,7 @@ def atomic_write_bytes(path: str | os.PathLike[str], data: bytes) -> Path:
             fh.write(data)
             fh.flush()
             os.fsync(fh.fileno())
+        os.chmod(tmp, 0o666 & ~_umask())  # mkstemp makes 0600; give the usual mode
         os.replace(tmp, target)
     except BaseException:
         try:
@@ -70,6 +71,12 @@ def atomic_write_bytes(path: str | os.PathLike[str], data: bytes) -> Path:
             pass
         raise
     return target
+
+
+def _umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
 
 
 def atomic_write_text(path: str | os.PathLike[str], text: str) -> Path:
