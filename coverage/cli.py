@@ -1,8 +1,8 @@
 """The console front: parses, calls, prints. No physics here.
 
-Each verb lives in a module of ``lobeplan.report`` that provides
+Each verb lives in a module of ``lobeplan.report`` (listed in ``VERBS``
+with its ``--help`` line) that provides
 
-- ``HELP``: one line for ``--help``;
 - ``add_arguments(parser)``: the verb's own options (optional);
 - ``build(site, args) -> dict``: the JSON-ready result (strict JSON);
 - ``format_text(result) -> str``: the table a person reads;
@@ -21,15 +21,23 @@ from .errors import LobeplanError
 
 __all__ = ["main"]
 
+# verb -> (module, one line for --help). Only the chosen verb's module is
+# imported, so a quick verb does not pay for the maps' or the optimiser's imports.
 VERBS = {
-    "demo": "lobeplan.report.demo",
-    "plan": "lobeplan.report.plan",
-    "paths": "lobeplan.report.paths",
-    "needs": "lobeplan.report.needs",
-    "pattern": "lobeplan.report.pattern",
-    "feed": "lobeplan.report.feed",
-    "map": "lobeplan.report.map",
-    "exposure": "lobeplan.report.exposure",
+    "demo": ("lobeplan.report.demo", "run the whole job on the shipped demo site (an invented scenario); "
+             "writes to ./maps"),
+    "plan": ("lobeplan.report.plan", "rank baseline bearings and spacings against the goals; "
+             "per-goal switch states, maps and results"),
+    "paths": ("lobeplan.report.paths", "bearings and distances (short and long path) to every goal region"),
+    "needs": ("lobeplan.report.needs", "takeoff angles each band needs to reach each goal, and the hours "
+              "it is open"),
+    "pattern": ("lobeplan.report.pattern", "array patterns in azimuth and elevation: peak gain, "
+                "front-to-back, beamwidth"),
+    "feed": ("lobeplan.report.feed", "coupled impedances, true element currents, feed-point impedances, "
+             "line design and match"),
+    "map": ("lobeplan.report.map", "azimuthal-equidistant map per band with the lobes and goals"),
+    "exposure": ("lobeplan.report.exposure", "RF exposure distances (far-field estimate, US limits) with "
+                 "the cautions that go with them"),
 }
 
 
@@ -40,33 +48,32 @@ class _Parser(argparse.ArgumentParser):
         self.exit(2, f"lobeplan: error: {message}\n")
 
 
-def _modules() -> dict[str, object]:
-    out = {}
-    for verb, name in VERBS.items():
-        try:
-            out[verb] = importlib.import_module(name)
-        except ModuleNotFoundError as exc:
-            if exc.name != name:
-                raise
-    return out
+def _chosen_verb(argv: list[str]) -> str | None:
+    for arg in argv:
+        if not arg.startswith("-"):
+            return arg if arg in VERBS else None
+    return None
 
 
-def _build_parser(modules: dict[str, object]) -> argparse.ArgumentParser:
+def _build_parser(verb: str | None) -> tuple[argparse.ArgumentParser, object | None]:
     parser = _Parser(prog="lobeplan", description="Plan a phased array of HF verticals "
                      "against the regions you want to reach.")
     parser.add_argument("--debug", action="store_true", help="show the traceback of an internal error")
     sub = parser.add_subparsers(dest="verb", metavar="VERB", parser_class=_Parser)
     sub.required = True
-    for verb, mod in modules.items():
-        p = sub.add_parser(verb, help=getattr(mod, "HELP", verb), description=getattr(mod, "HELP", verb))
-        if verb != "demo":
+    chosen = None
+    for name, (module, help_text) in VERBS.items():
+        p = sub.add_parser(name, help=help_text, description=help_text)
+        if name != "demo":
             p.add_argument("site", metavar="SITE.toml", help="the site file")
         p.add_argument("--json", action="store_true", help="machine-readable result on stdout, nothing else there")
         p.add_argument("--out", metavar="DIR", default=None, help="write result files into DIR")
         p.add_argument("--debug", action="store_true", help="show the traceback of an internal error")
-        if hasattr(mod, "add_arguments"):
-            mod.add_arguments(p)
-    return parser
+        if name == verb:
+            chosen = importlib.import_module(module)
+            if hasattr(chosen, "add_arguments"):
+                chosen.add_arguments(p)
+    return parser, chosen
 
 
 def _run(args: argparse.Namespace, mod: object) -> int:
@@ -101,10 +108,9 @@ def main(argv: Sequence[str] | None = None) -> int:
     argv = list(sys.argv[1:] if argv is None else argv)
     debug = "--debug" in argv
     try:
-        modules = _modules()
-        parser = _build_parser(modules)
+        parser, module = _build_parser(_chosen_verb(argv))
         args = parser.parse_args(argv)
-        return _run(args, modules[args.verb])
+        return _run(args, module)
     except SystemExit as exc:  # argparse: --help or a usage error
         return int(exc.code or 0) if isinstance(exc.code, int) else 2
     except LobeplanError as exc:

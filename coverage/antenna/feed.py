@@ -28,7 +28,6 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import least_squares
 
 from .model import Feed
 
@@ -276,6 +275,8 @@ def design_line_lengths(z_base_ohm: np.ndarray, feed: Feed, freq_hz: float,
         for e in range(2, n):  # remaining lines: nearest junction voltage on their grid
             start.append(grid[int(np.argmin(np.abs(vj[e] - vj[0][i1])))])
         seeds.append(start)
+    from scipy.optimize import least_squares  # imported here only: it costs 0.6 s
+
     found = []
     lo, hi = min_length_m, min_length_m + 2.0 * lam
     for start in seeds:

@@ -8,9 +8,7 @@ from . import needs as _needs
 from . import paths as _paths
 from . import plan as _plan
 
-HELP = "run the whole job on the shipped demo site (an invented scenario); writes to ./maps"
-
-__all__ = ["HELP", "add_arguments", "check_arguments", "site_path", "default_out", "build", "format_text", "write_files"]
+__all__ = ["add_arguments", "check_arguments", "site_path", "default_out", "build", "format_text", "write_files"]
 
 
 def add_arguments(p) -> None:

@@ -7,9 +7,7 @@ from ..antenna.pattern import array_pattern, pattern_figures
 from ..errors import UsageError
 from ..safety import CAUTIONS, EXPOSURE_NOTES, exposure_distance
 
-HELP = "RF exposure distances (far-field estimate, US limits) with the cautions that go with them"
-
-__all__ = ["HELP", "add_arguments", "check_arguments", "build", "format_text", "peak_gain_by_band"]
+__all__ = ["add_arguments", "check_arguments", "build", "format_text", "peak_gain_by_band"]
 
 
 def add_arguments(p) -> None:

@@ -10,9 +10,7 @@ from ..antenna.feed import (design_l_network, design_line_lengths, drive_fed, l_
 from ..antenna.pattern import coupled_elements, state_currents, state_drive
 from .pattern import current_rows, pair, select_bands
 
-HELP = "coupled impedances, true element currents, feed-point impedances, line design and match"
-
-__all__ = ["HELP", "add_arguments", "build", "format_text"]
+__all__ = ["add_arguments", "build", "format_text"]
 
 _EDGE_FRACTION = 0.015
 

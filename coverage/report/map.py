@@ -12,9 +12,7 @@ from pathlib import Path
 
 from ..errors import UsageError
 
-HELP = "azimuthal-equidistant map centred on the station with the lobes, goals and bearings (per band)"
-
-__all__ = ["HELP", "add_arguments", "check_arguments", "default_out", "build", "format_text", "write_files",
+__all__ = ["add_arguments", "check_arguments", "default_out", "build", "format_text", "write_files",
            "map_date", "FORMATS", "PAPERS", "DEFAULT_DPI", "map_file_name", "write_plan_figures"]
 
 FORMATS = ("png", "pdf", "svg")

@@ -4,9 +4,7 @@ from __future__ import annotations
 from ..plan.planner import needs_for_site
 from ..progress import ProgressBar
 
-HELP = "takeoff angles each band needs to reach each goal, and the hours it is open"
-
-__all__ = ["HELP", "build", "build_from_goal_bands", "format_text"]
+__all__ = ["build", "build_from_goal_bands", "format_text"]
 
 
 def _round(x, nd):

@@ -6,9 +6,7 @@ import numpy as np
 from ..geo.paths import bearing_arc, goal_paths
 from ..geo.regions import goal_points
 
-HELP = "bearings and distances (short and long path) to every goal region"
-
-__all__ = ["HELP", "build", "format_text", "goal_path_rows"]
+__all__ = ["build", "format_text", "goal_path_rows"]
 
 
 def goal_path_rows(site) -> list[dict]:

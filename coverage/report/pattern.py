@@ -10,9 +10,7 @@ from ..antenna.pattern import GAIN_FLOOR_DBI, array_pattern, pattern_figures
 from ..errors import UsageError
 from ..grid import AZIMUTH_DEG, ELEVATION_DEG
 
-HELP = "array patterns in azimuth and elevation: peak gain, front-to-back, beamwidth"
-
-__all__ = ["HELP", "add_arguments", "build", "format_text", "write_files",
+__all__ = ["add_arguments", "build", "format_text", "write_files",
            "select_bands", "select_states", "to_true_bearing", "current_rows", "pair"]
 
 

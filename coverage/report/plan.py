@@ -9,9 +9,7 @@ from pathlib import Path
 
 from ..safety import CAUTIONS
 
-HELP = "rank baseline bearings and spacings against the goals; per-goal switch states"
-
-__all__ = ["HELP", "add_arguments", "check_arguments", "build", "build_from_plan", "format_text", "write_files", "run_plan"]
+__all__ = ["add_arguments", "check_arguments", "build", "build_from_plan", "format_text", "write_files", "run_plan"]
 
 
 def add_arguments(p) -> None:
