@@ -7,7 +7,8 @@ with its ``--help`` line) that provides
 - ``build(site, args) -> dict``: the JSON-ready result (strict JSON);
 - ``format_text(result) -> str``: the table a person reads;
 - ``write_files(site, args, result, out_dir) -> list[Path]`` (optional):
-  files for ``--out``, each written atomically.
+  files for ``--out``, each written atomically; without it ``--out`` gets
+  ``<verb>.json``.
 """
 from __future__ import annotations
 
@@ -77,7 +78,7 @@ def _build_parser(verb: str | None) -> tuple[argparse.ArgumentParser, object | N
 
 
 def _run(args: argparse.Namespace, mod: object) -> int:
-    from .fileio import check_out_dir, dumps_json, ensure_dir
+    from .fileio import atomic_write_json, check_out_dir, dumps_json, ensure_dir
     from .site import load
 
     if hasattr(mod, "site_path"):
@@ -95,8 +96,12 @@ def _run(args: argparse.Namespace, mod: object) -> int:
     result = mod.build(site, args)
     text = dumps_json(result) if args.json else mod.format_text(result)
     written = []
-    if out_dir is not None and hasattr(mod, "write_files"):
-        written = mod.write_files(site, args, result, ensure_dir(out_dir))
+    if out_dir is not None:
+        folder = ensure_dir(out_dir)
+        if hasattr(mod, "write_files"):
+            written = mod.write_files(site, args, result, folder)
+        else:  # every verb honours --out: at least its result as JSON
+            written = [atomic_write_json(folder / f"{args.verb}.json", result)]
     sys.stdout.write(text if text.endswith("\n") else text + "\n")
     if written and not args.json:
         sys.stdout.write("".join(f"wrote {p}\n" for p in written))

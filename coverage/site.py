@@ -20,7 +20,7 @@ from .geo.station import Station
 from .plan.model import Orientation
 from .propagation.model import PropagationSettings
 
-__all__ = ["Band", "Goal", "Site", "load", "loads", "MapSettings"]
+__all__ = ["Band", "Goal", "Site", "load", "loads", "MapSettings", "height_caveats"]
 
 _REQUIRED = object()
 LAYOUTS = ("single", "pair", "line", "square", "custom")
@@ -166,7 +166,7 @@ class _Reader:
         return v
 
     def number_list(self, t: dict, name: str, key: str, default: Any = _REQUIRED, *, length: int | None = None,
-                    **limits: Any) -> Any:
+                    why: str = "", **limits: Any) -> Any:
         k = _join(key, name)
         if name not in t:
             if default is _REQUIRED:
@@ -176,7 +176,7 @@ class _Reader:
         if not isinstance(v, list) or not v:
             raise self.fail(k, f"{_show(v)} is not a non-empty list of numbers")
         if length is not None and len(v) != length:
-            raise self.fail(k, f"has {len(v)} values; expected {length}")
+            raise self.fail(k, f"has {len(v)} values; expected {length}" + (f" ({why})" if why else ""))
         return tuple(self.check_number(x, f"{k}[{i + 1}]", **limits) for i, x in enumerate(v))
 
 
@@ -190,7 +190,7 @@ def _show(v: Any) -> str:
     if isinstance(v, dict):
         return "a table"
     if isinstance(v, list):
-        return "a list"
+        return "an empty list" if not v else "a list"
     if isinstance(v, bool):
         return "true" if v else "false"
     if isinstance(v, float) and not math.isfinite(v):
@@ -265,9 +265,39 @@ def loads(text: str, file: str = "<site>", base_dir: str = ".") -> Site:
     array, orientation = _array(r, doc["array"], doc.get("feed", {}))
     bands = _bands(r, doc["band"])
     goals = _goals(r, doc["goal"], bands)
+    _check_height(r, array, bands)
     prop = _propagation(r, doc.get("propagation", {}))
     map_settings = _map(r, doc.get("map", {}))
     return Site(file, base_dir, station, array, orientation, bands, goals, prop, map_settings)
+
+
+# The moment method is checked from 0.1 to 0.75 wavelength (issue 3) and
+# converges to 1.2; above this it is not used.
+MAX_HEIGHT_WAVELENGTHS = 1.25
+
+
+def _check_height(r: _Reader, array: ArraySpec, bands: tuple[Band, ...]) -> None:
+    for i, b in enumerate(bands):
+        h = array.height_m * b.freq_hz / 299_792_458.0
+        if h > MAX_HEIGHT_WAVELENGTHS:
+            raise r.fail("array.height_m", f"{array.height_m:g} m is {h:.2f} wavelength on band "
+                         f"{b.name!r} ({b.freq_mhz:g} MHz); the element model holds up to "
+                         f"{MAX_HEIGHT_WAVELENGTHS:g} wavelength")
+
+
+def height_caveats(site: "Site") -> tuple[str, ...]:
+    """Plain sentences for bands where the element model is least sure."""
+    out = []
+    for b in site.bands:
+        h = site.array.height_m * b.freq_hz / 299_792_458.0
+        if 0.42 <= h <= 0.58 or 0.92 <= h <= 1.08:
+            out.append(f"On {b.name} the elements are {h:.2f} wavelength tall, near an anti-resonance: the base "
+                       "impedance (and so the currents of fed states, the line design and the match) is uncertain "
+                       "by tens of percent; forced-current patterns are not affected as much.")
+        elif h > 0.75 or h < 0.1:
+            out.append(f"On {b.name} the elements are {h:.2f} wavelength tall, outside the 0.1-0.75 wavelength "
+                       "range the element model is checked over.")
+    return tuple(out)
 
 
 def _station(r: _Reader, t: Any) -> Station:
@@ -287,7 +317,8 @@ def _station(r: _Reader, t: Any) -> Station:
         return Station(name, lat, lon, loc[:4].upper() + loc[4:6].lower() + loc[6:])
     if not has_ll:
         raise r.fail("station", "no position; give locator = \"AB12cd\" or lat and lon in degrees")
-    lat = r.number(t, "lat", "station", lo=-90.0, hi=90.0, what="a latitude in degrees, -90 to 90")
+    lat = r.number(t, "lat", "station", lo=-90.0, hi=90.0, lo_open=True, hi_open=True,
+                   what="a latitude in degrees between -90 and 90 (at a pole bearings are undefined)")
     lon = r.number(t, "lon", "station", lo=-180.0, hi=180.0, what="a longitude in degrees, -180 to 180")
     return Station(name, lat, lon, _locator.latlon_to_locator(lat, lon, 6))
 
@@ -298,7 +329,7 @@ def _ground(r: _Reader, v: Any) -> Ground:
         if v not in GROUND_CLASSES:
             names = tuple(GROUND_CLASSES)
             close = difflib.get_close_matches(v, names, n=1, cutoff=0.5)
-            hint = f"; did you mean {close[0]!r}?" if close else ""
+            hint = f" (did you mean {close[0]!r}?)" if close else ""
             raise r.fail(key, f"unknown ground class {v!r}{hint}; expected one of {', '.join(names)} "
                          "or {eps_r = ..., sigma_s_m = ...}")
         return GROUND_CLASSES[v]
@@ -308,7 +339,30 @@ def _ground(r: _Reader, v: Any) -> Ground:
     return Ground(f"eps_r {eps:g}, {sig:g} S/m", eps, sig)
 
 
-def _positions(r: _Reader, t: dict, key: str, layout: str, spacing: float | None) -> tuple:
+_LAYOUT_KEYS = {"single": (), "pair": ("spacing_m",), "square": ("spacing_m",),
+                "line": ("spacing_m", "elements"), "custom": ("positions_m",)}
+
+
+def _positions(r: _Reader, t: dict, key: str, layout: str, spacing: float | None, radius: float) -> tuple:
+    pts = _layout_points(r, t, key, layout, spacing)
+    # thin-wire model: elements must stand many radii apart (10 radii, a
+    # common rule for the thin-wire kernel)
+    for i in range(len(pts)):
+        for j in range(i):
+            if math.dist(pts[i], pts[j]) < 10.0 * radius:
+                name = "positions_m" if layout == "custom" else "spacing_m"
+                raise r.fail(_join(key, name), f"elements {j + 1} and {i + 1} stand "
+                             f"{math.dist(pts[i], pts[j]):.3g} m apart; the thin-wire model needs at least "
+                             f"10 element radii ({10 * radius:.3g} m)")
+    return pts
+
+
+def _layout_points(r: _Reader, t: dict, key: str, layout: str, spacing: float | None) -> tuple:
+    for name in ("spacing_m", "elements", "positions_m"):
+        if name in t and name not in _LAYOUT_KEYS[layout]:
+            raise r.fail(_join(key, name), f"does not apply to the {layout} layout; "
+                         + (f"it takes {', '.join(_LAYOUT_KEYS[layout])}" if _LAYOUT_KEYS[layout]
+                            else "it has one element and no spacing"))
     if layout == "single":
         return ((0.0, 0.0),)
     if layout == "custom":
@@ -337,7 +391,8 @@ def _positions(r: _Reader, t: dict, key: str, layout: str, spacing: float | None
     return tuple((i * spacing, 0.0) for i in range(n))
 
 
-def _states(r: _Reader, v: Any, key: str, n: int) -> tuple[State, ...]:
+def _states(r: _Reader, v: Any, key: str, n: int, layout: str) -> tuple[State, ...]:
+    why = f"one per element of the {layout} layout"
     states = []
     names = set()
     for i, t in enumerate(r.tables(v, key)):
@@ -351,13 +406,13 @@ def _states(r: _Reader, v: Any, key: str, n: int) -> tuple[State, ...]:
         if has_phase == ("line_m" in t):
             raise r.fail(k, "give either phase_deg (with optional amplitude) or line_m, exactly one")
         if "line_m" in t:
-            lines = r.number_list(t, "line_m", k, length=n, lo=0.0, hi=1000.0,
+            lines = r.number_list(t, "line_m", k, length=n, why=why, lo=0.0, hi=1000.0,
                                   what="a line length in metres from 0 to 1000")
             states.append(State(name, line_m=lines))
             continue
-        phase = r.number_list(t, "phase_deg", k, default=tuple(0.0 for _ in range(n)), length=n,
+        phase = r.number_list(t, "phase_deg", k, default=tuple(0.0 for _ in range(n)), length=n, why=why,
                               lo=-720.0, hi=720.0, what="a phase in degrees from -720 to 720")
-        amp = r.number_list(t, "amplitude", k, default=tuple(1.0 for _ in range(n)), length=n,
+        amp = r.number_list(t, "amplitude", k, default=tuple(1.0 for _ in range(n)), length=n, why=why,
                             lo=0.0, hi=100.0, what="a relative amplitude from 0 to 100")
         if not any(a > 0 for a in amp):
             raise r.fail(_join(k, "amplitude"), "all amplitudes are zero; at least one element must be driven")
@@ -393,7 +448,7 @@ def _array(r: _Reader, t: Any, feed_t: Any) -> tuple[ArraySpec, Orientation]:
                       what="an element height in metres, more than 0 and up to 100")
     radius = r.number(t, "radius_m", key, default=0.02, lo=0.0, hi=0.5, lo_open=True,
                       what="an element radius in metres, more than 0 and up to 0.5")
-    if radius * 20 > height:
+    if radius * 20 >= height:
         raise r.fail("array.radius_m", f"{radius:g} m is too fat for a {height:g} m element; "
                      "expected radius_m under a twentieth of height_m")
     ground = _ground(r, t.get("ground", "average"))
@@ -413,16 +468,16 @@ def _array(r: _Reader, t: Any, feed_t: Any) -> tuple[ArraySpec, Orientation]:
             if spacing is not None and len(spacing) != 1:
                 raise r.fail(_join(k, "spacing_m"), "one spacing per option block; expected a number")
             sp = spacing[0] if spacing else None
-            pos = _positions(r, ot, k, layout, sp)
-            states = _option_states(r, ot, k, len(pos))
+            pos = _positions(r, ot, k, layout, sp, radius)
+            states = _option_states(r, ot, k, len(pos), layout)
             name = r.string(ot, "name", k, default=_option_name(layout, sp, len(pos)))
             options.append(ArrayOption(name, layout, sp, pos, states))
     else:
         layout = r.string(t, "layout", key, default="pair", choices=LAYOUTS)
         spacings: tuple[float | None, ...] = (None,) if layout in ("single", "custom") else _spacings(r, t, key)
         for sp in spacings:
-            pos = _positions(r, t, key, layout, sp)
-            states = _option_states(r, t, key, len(pos))
+            pos = _positions(r, t, key, layout, sp, radius)
+            states = _option_states(r, t, key, len(pos), layout)
             options.append(ArrayOption(_option_name(layout, sp, len(pos)), layout, sp, pos, states))
     names = [o.name for o in options]
     if len(set(names)) != len(names):
@@ -432,13 +487,13 @@ def _array(r: _Reader, t: Any, feed_t: Any) -> tuple[ArraySpec, Orientation]:
     return ArraySpec(height, radius, ground, loss, feed, tuple(options)), orientation
 
 
-def _option_states(r: _Reader, t: dict, key: str, n: int) -> tuple[State, ...]:
+def _option_states(r: _Reader, t: dict, key: str, n: int, layout: str) -> tuple[State, ...]:
     if "state" not in t:
         if n == 1:
             return (State("single", phase_deg=(0.0,), amplitude=(1.0,)),)
         raise r.fail(_join(key, "state"), "no states; give at least one [[array.state]] switch position "
                      "with phase_deg or line_m")
-    return _states(r, t["state"], _join(key, "state"), n)
+    return _states(r, t["state"], _join(key, "state"), n, layout)
 
 
 def _orientation(r: _Reader, t: dict) -> Orientation:
@@ -550,7 +605,7 @@ def _goals(r: _Reader, v: Any, bands: tuple[Band, ...]) -> tuple[Goal, ...]:
             for j, b in enumerate(bv):
                 if b not in band_names:
                     close = difflib.get_close_matches(b, band_names, n=1, cutoff=0.5)
-                    hint = f"; did you mean {close[0]!r}?" if close else ""
+                    hint = f" (did you mean {close[0]!r}?)" if close else ""
                     raise r.fail(f"{k}.bands[{j + 1}]", f"{b!r} is not a band of this site{hint}; "
                                  f"the bands are {', '.join(repr(n) for n in band_names)}")
             goal_bands = tuple(dict.fromkeys(bv))
@@ -575,6 +630,9 @@ def _goals(r: _Reader, v: Any, bands: tuple[Band, ...]) -> tuple[Goal, ...]:
             avoid = tuple(_region_check(r, a, f"{k}.avoid[{j + 1}]") for j, a in enumerate(av))
         avoid_weight = r.number(t, "avoid_weight", k, default=1.0, lo=0.0, hi=100.0,
                                 what="an avoid weight from 0 to 100")
+        if any(g.name == name and g.path in (("short", "long") if path == "both" else (path,)) for g in out):
+            raise r.fail(_join(k, "name"), f"{name!r} is already a goal on the same path; give each goal "
+                         "its own name")
         for p in (("short", "long") if path == "both" else (path,)):
             out.append(Goal(name, region, weight, goal_bands, p, clip, avoid, avoid_weight, k))
     if sum(g.weight for g in out) <= 0.0:
@@ -606,8 +664,8 @@ def _propagation(r: _Reader, t: Any) -> PropagationSettings:
             kk = f"propagation.hours_utc[{i + 1}]"
             if not isinstance(pair, list) or len(pair) != 2:
                 raise r.fail(kk, f"{_show(pair)} is not a [start, end) pair of UT hours")
-            a, b = (r.check_number(x, kk, lo=0, hi=24, integer=True, what="a whole UT hour from 0 to 24")
-                    for x in pair)
+            a = r.check_number(pair[0], kk, lo=0, hi=23, integer=True, what="a start hour from 0 to 23 UT")
+            b = r.check_number(pair[1], kk, lo=0, hi=24, integer=True, what="an end hour from 0 to 24 UT")
             if a == b:
                 raise r.fail(kk, f"[{a}, {b}) is empty; expected start != end (ranges may wrap midnight)")
             ranges.append((a, b))

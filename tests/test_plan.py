@@ -249,7 +249,7 @@ def test_avoid_region_turns_the_beam_away():
     # A goal at 45 deg and a region to keep in the rear at 90 deg: the beam
     # turns away from 90 deg, and the value carries the avoid term.
     goal = f'[[goal]]\nregion = "{_spot(45, 2500, 400)}"'
-    avoid = f'{goal}\navoid = ["{_spot(90, 2500, 400)}"]\navoid_weight = 1'
+    avoid = f'{goal}\navoid = ["{_spot(90, 2500, 400)}"]\navoid_weight = 1.5'
     p0 = make_plan(loads(_site(goal, QUARTER_PAIR))).ranking[0]
     p1 = make_plan(loads(_site(avoid, QUARTER_PAIR))).ranking[0]
     assert p0.goals[0].avoid_advantage_db is None and p1.goals[0].avoid_advantage_db is not None
@@ -257,7 +257,10 @@ def test_avoid_region_turns_the_beam_away():
     assert abs(b0 - 45) <= 2
     assert (b1 - b0 + 180) % 360 - 180 < -5  # turned away from 90 deg (counter-clockwise)
     g = p1.goals[0]
-    assert g.value_db == pytest.approx(g.advantage_db - max(g.avoid_advantage_db, -avoid_credit_cap_db(2)), abs=1e-9)
+    # value = advantage - avoid_weight x avoid advantage, the credit capped at
+    # 10 log10 2 = 3.01 dB for a pair
+    assert g.value_db == pytest.approx(g.advantage_db - 1.5 * max(g.avoid_advantage_db, -3.0103), abs=1e-3)
+    assert avoid_credit_cap_db(2) == pytest.approx(3.0103, abs=1e-4)
 
 
 def test_distinct_maxima_keep_10_degrees_and_merge_half_turns():
@@ -276,14 +279,24 @@ def test_central_symmetry_of_layouts():
     assert not centrally_symmetric(((0, 0), (8, 3), (3, 9)))
 
 
-def test_closed_band_gives_no_score_and_no_crash():
-    # a goal 28 MHz cannot reach in the geometry model is still "open"; with
-    # every goal weight but one zero, the score follows that goal alone
+def test_a_closed_goal_drops_out_of_the_score():
+    # A goal-band with no open hour (zero need weights) has no value, and the
+    # score is then the other goal's value alone (the Score's open-fraction
+    # weighting, DESIGN.md).
     goals = (f'[[goal]]\nname = "a"\nregion = "{_spot(45, 2500)}"\n'
-             f'[[goal]]\nname = "b"\nregion = "{_spot(225, 2500)}"\nweight = 0')
-    plan = make_plan(loads(_site(goals, QUARTER_PAIR)))
-    assert np.isfinite(plan.options[0].score_db).all()
-    assert math.isfinite(plan.ranking[0].score_db)
+             f'[[goal]]\nname = "b"\nregion = "{_spot(225, 2500)}"\nweight = 5')
+    site = loads(_site(goals, QUARTER_PAIR))
+    gbs, _ = needs_for_site(site)
+    closed = replace(gbs[1], needs=replace(gbs[1].needs, weights=np.zeros_like(gbs[1].needs.weights),
+                                            open_fraction=0.0))
+    plan = make_plan(site, (gbs[0], closed))
+    op = plan.options[0]
+    assert np.isnan(op.values_db[1]).all()
+    assert np.allclose(op.score_db, op.values_db[0])
+    rows = plan.ranking[0].goals
+    assert rows[1].state == "" and rows[1].advantage_db is None and rows[1].open_fraction == 0.0
+    alone = make_plan(loads(_site(f'[[goal]]\nname = "a"\nregion = "{_spot(45, 2500)}"', QUARTER_PAIR)))
+    assert np.allclose(op.score_db, alone.options[0].score_db)
 
 
 def test_plan_verb_json_shape_and_csv(tmp_path, capsys):

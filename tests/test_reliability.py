@@ -84,7 +84,8 @@ def random_site(draw):
     n = {"single": 1, "pair": 2, "line": 3, "square": 4, "custom": 3}[layout]
     phases = draw(st.lists(st.floats(-180, 180), min_size=n, max_size=n))
     spacing = draw(st.floats(3, 40))
-    height = draw(st.floats(4, 20))
+    # the element model's checked range: 0.1 to 0.75 wavelength
+    height = draw(st.floats(0.12, 0.7)) * 299.792458 / freq
     ground = draw(st.sampled_from(["perfect", "average", "sea", "very-dry", "poor"]))
     lines = [f"[station]\nlat = {lat}\nlon = {lon}", "[array]", f"height_m = {height}", f'layout = "{layout}"',
              f'ground = "{ground}"']

@@ -16,27 +16,32 @@ BAD = sorted((Path(__file__).parent / "bad_sites").glob("*.toml"))
 EXPECT_WITHOUT_HEADER = {"empty.toml": "is empty"}
 
 
-def _expected(path: Path) -> str:
+def _expected(path: Path) -> list[str]:
+    """The fragments the message must hold: the header's parts split at ' | '."""
     first = path.read_bytes().split(b"\n", 1)[0].decode("utf-8", "replace")
     if first.startswith("# expect: "):
-        return first[len("# expect: "):].strip()
-    return EXPECT_WITHOUT_HEADER[path.name]
+        return [part.strip() for part in first[len("# expect: "):].split(" | ")]
+    return [EXPECT_WITHOUT_HEADER[path.name]]
 
 
 def test_the_corpus_is_large_enough():
     assert len(BAD) >= 25
 
 
+@pytest.mark.parametrize("verb", ["paths", "plan"])
 @pytest.mark.parametrize("path", BAD, ids=[p.name for p in BAD])
-def test_broken_site_gives_one_line_exit_2_and_no_files(path, tmp_path, capsys):
+def test_broken_site_gives_one_line_exit_2_and_no_files(path, verb, tmp_path, capsys):
     out = tmp_path / "out"
-    code = main(["paths", str(path), "--out", str(out)])
+    code = main([verb, str(path), "--out", str(out)])
     captured = capsys.readouterr()
     assert code == 2
     lines = captured.err.strip().splitlines()
     assert len(lines) == 1, captured.err
-    assert str(path) in lines[0]
-    assert _expected(path) in lines[0]
+    prefix = f"lobeplan: {path}: "
+    assert lines[0].startswith(prefix)
+    message = lines[0][len(prefix):]  # the file name itself must not satisfy the check
+    for fragment in _expected(path):
+        assert fragment in message
     assert "Traceback" not in captured.err
     assert captured.out == ""
     assert not out.exists()

@@ -306,7 +306,9 @@ def _cell_polygon(lons: np.ndarray, lats: np.ndarray) -> list[Polygon]:
     if abs(winding) > 180.0:  # encircles a pole: close the ring through it
         pole = 90.0 if np.mean(lats) > 0 else -90.0
         ring = list(zip(lon_u, lats)) + [(lon_u[-1], pole), (lon_u[0], pole)]
-        poly = shapely.affinity.translate(Polygon(ring).buffer(0), xoff=-180.0 - min(lon_u[0], lon_u[-1]))
+        # whole turns only: a shift by any other amount would rotate the shape
+        start = min(lon_u[0], lon_u[-1])
+        poly = shapely.affinity.translate(Polygon(ring).buffer(0), xoff=-360.0 * np.floor((start + 180.0) / 360.0))
     else:
         poly = Polygon(list(zip(lon_u, lats))).buffer(0)
     parts = []

@@ -418,13 +418,11 @@ def _caveats(geo: GoalGeometry, freq_hz: float, settings: PropagationSettings) -
         f"{E_DECILE_FACTORS[0]:g}/{E_DECILE_FACTORS[1]:g} E).",
         "Sporadic E, the F1 layer, auroral and polar effects, noise and power are not modelled.",
     ]
-    if freq_hz < ABSORPTION_BELOW_HZ:
-        out.append("The lowest usable frequency is not modelled beyond a daytime absorption estimate "
-                   f"below {ABSORPTION_BELOW_HZ / 1e6:g} MHz: a mode counts as closed when it exceeds "
-                   f"{settings.absorption_limit_db:g} dB.")
-    else:
-        out.append("The lowest usable frequency is not modelled: no absorption is estimated at "
-                   f"{ABSORPTION_BELOW_HZ / 1e6:g} MHz and above.")
+    # one sentence for every band, so that a plan over several bands says it once
+    out.append("The lowest usable frequency is not modelled, except for a daytime absorption estimate on "
+               f"bands below {ABSORPTION_BELOW_HZ / 1e6:g} MHz (a mode counts as closed above "
+               f"{settings.absorption_limit_db:g} dB); from {ABSORPTION_BELOW_HZ / 1e6:g} MHz up no "
+               "absorption is estimated.")
     if s.clamped:
         lo, hi = clim.SOLAR_FLUX_RANGE_SFU
         out.append(f"Solar input {s.requested_sfu:.0f} sfu was clamped to {s.flux_sfu:.0f} sfu: the maps "

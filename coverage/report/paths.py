@@ -4,7 +4,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..geo.paths import bearing_arc, goal_paths
-from ..geo.regions import goal_points
+from ..geo.regions import goal_points, region_area
 
 __all__ = ["build", "format_text", "goal_path_rows"]
 
@@ -12,6 +12,8 @@ __all__ = ["build", "format_text", "goal_path_rows"]
 def goal_path_rows(site) -> list[dict]:
     rows = []
     for goal in site.goals:
+        for j, text in enumerate(goal.avoid):  # refuse a bad avoid region here too, not only in plan
+            region_area(site, text, None, f"{goal.key}.avoid[{j + 1}]")
         lons, lats = goal_points(site, goal)
         bearing, dist = goal_paths(site.station, lons, lats, goal.path)
         start, end, median = bearing_arc(bearing)

@@ -8,6 +8,7 @@ import math
 from pathlib import Path
 
 from ..safety import CAUTIONS
+from ..site import height_caveats
 
 __all__ = ["add_arguments", "check_arguments", "build", "build_from_plan", "format_text", "write_files", "run_plan"]
 
@@ -81,7 +82,7 @@ def build_from_plan(site, plan) -> dict:
         "ranking": ranking,
         "spacing_comparison": comparison,
         "orientation_scores": scores,
-        "caveats": list(plan.caveats),
+        "caveats": list(plan.caveats) + list(height_caveats(site)),
         "cautions": list(CAUTIONS),
     }
 
