@@ -241,7 +241,7 @@ _FEED = ("z0_ohm", "velocity_factor", "loss_db_per_100m_at_10mhz")
 _BAND = ("name", "freq_mhz", "edges_mhz")
 _GOAL = ("name", "region", "weight", "bands", "path", "clip", "avoid", "avoid_weight")
 _PROP = ("model", "month", "year", "solar_flux", "sunspot_number", "hours_utc", "min_elevation_deg",
-         "points_per_goal", "f2_height_km", "e_height_km", "seed", "absorption_limit_db", "fof2_maps")
+         "points_per_goal", "f2_height_km", "e_height_km", "seed", "absorption_limit_db", "fof2_maps", "extra_hop_loss_db")
 _MAP = ("lobe_peak_km", "lobe_floor_db", "ring_step_km")
 
 
@@ -691,6 +691,8 @@ def _propagation(r: _Reader, t: Any) -> PropagationSettings:
         absorption_limit_db=r.number(t, "absorption_limit_db", key, default=30.0, lo=1.0, hi=200.0,
                                      what="a loss from 1 to 200 dB above which a mode counts as closed"),
         fof2_maps=r.string(t, "fof2_maps", key, default="ccir", choices=("ccir", "ursi")),
+        extra_hop_loss_db=r.number(t, "extra_hop_loss_db", key, default=3.0, lo=0.0, hi=20.0,
+                                   what="a loss from 0 to 20 dB per ground reflection beyond the fewest"),
     )
 
 

@@ -166,3 +166,22 @@ def test_clamped_flux_is_said(dec_low):
     n = band_needs(geo, 14.1e6, s)
     assert any("clamped" in c for c in n.caveats)
     assert not any("clamped" in c for c in band_needs(dec_low[1], 14.1e6, dec_low[0]).caveats)
+
+
+def test_higher_order_modes_carry_less_of_the_need():
+    # Common practice: each extra ground reflection costs a few dB, so the
+    # low-order modes carry most of the signal. With a loss per extra hop the
+    # fewest-hop F2 mode takes the largest share and the need moves to lower
+    # elevations; with no loss the shares follow the mode probabilities alone.
+    sector = _sector(280.0, 6500.0, 7500.0, n=60)
+    flat = _clim(hours_utc=((0, 6),), extra_hop_loss_db=0.0)
+    lossy = _clim(hours_utc=((0, 6),), extra_hop_loss_db=6.0)
+    n_flat = band_needs(_prepare(flat, sector), 7.1e6, flat)
+    n_lossy = band_needs(_prepare(lossy, sector), 7.1e6, lossy)
+    assert n_flat.open_fraction == pytest.approx(n_lossy.open_fraction)  # open or not is unchanged
+    assert n_lossy.elevation_median < n_flat.elevation_median
+    share = lambda needs, n: sum(m.share for m in needs.modes if m.layer == "F2" and m.hops == n)
+    # 6500-7500 km at 300 km: 3 hops is the fewest for most points (a 2-hop
+    # mode just meets 3 deg at the near edge); more hops, less share
+    assert share(n_lossy, 3) > share(n_flat, 3)
+    assert share(n_lossy, 3) > share(n_lossy, 4) > share(n_lossy, 5)

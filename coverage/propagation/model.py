@@ -33,6 +33,7 @@ class PropagationSettings:
     # exceeds this is closed (a planning margin of our choosing, not a
     # published value); which foF2 coefficient set PyIRI uses
     absorption_limit_db: float = 30.0
+    extra_hop_loss_db: float = 3.0  # per ground reflection beyond the fewest (common practice)
     fof2_maps: str = "ccir"  # ccir | ursi
 
     @property

@@ -35,7 +35,9 @@ climatology
     The modes of one path and hour rise and fall with the same ionosphere,
     so they are taken as fully correlated: the path is open with the
     probability of its likeliest mode, and that weight is shared among the
-    modes in proportion to their own probabilities.
+    modes in proportion to their own probabilities times their relative
+    strength (``extra_hop_loss_db`` for each ground reflection beyond the
+    path's fewest: a few dB per reflection over land, common practice).
 
 References
 ----------
@@ -460,9 +462,18 @@ def band_needs(goal_geometry: GoalGeometry, freq_hz: float, settings: Propagatio
 
     n_hours, n_points, n_modes = p.shape
     q = p.max(axis=-1)                                       # (T, N) open probability
-    total_p = p.sum(axis=-1)
+    # Open modes share the weight by probability and by relative strength:
+    # every ground reflection more than the path's fewest costs
+    # ``extra_hop_loss_db``, so the low-order modes that carry most of the
+    # signal also carry most of the need.
+    exists = hops > 0
+    fewest = np.min(np.where(exists, hops, np.iinfo(np.int64).max), axis=-1, keepdims=True)
+    extra = np.where(exists, hops - fewest, 0)
+    strength = 10.0 ** (-settings.extra_hop_loss_db * extra / 10.0)
+    ps = p * strength
+    total_p = ps.sum(axis=-1)
     with np.errstate(invalid="ignore", divide="ignore"):
-        share = np.where(total_p[..., None] > 0, p / total_p[..., None], 0.0)
+        share = np.where(total_p[..., None] > 0, ps / total_p[..., None], 0.0)
     w = q[..., None] * share / max(n_hours * n_points, 1)   # (T, N, M)
 
     live = w > 0

@@ -81,7 +81,9 @@ def format_text(result: dict) -> str:
                      f"  {'open UT hours':<24} modes (share @ median elevation deg)")
         for row in (r for r in result["needs"] if r["band"] == band):
             e = row["elevation_deg"]
-            lines.append(f"  {row['goal'][:26]:<26} {row['path']:<5} {100 * row['open_fraction']:4.0f}%"
+            share = row["open_fraction"]
+            open_text = "  <1%" if 0 < share < 0.005 else f"{100 * share:4.0f}%"
+            lines.append(f"  {row['goal'][:26]:<26} {row['path']:<5} {open_text}"
                          f"  {fmt(e['p10'])} {fmt(e['median']):>6} {fmt(e['p90'])}"
                          f"  {_hour_ranges(row['open_hours_utc']):<24} {_mode_text(row['modes'])}")
         lines.append("")
