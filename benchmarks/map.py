@@ -16,6 +16,13 @@ from importlib import resources
 from pathlib import Path
 
 
+
+def _peak_rss_mb() -> float:
+    """Peak resident memory of this process (Linux reports ru_maxrss in KiB)."""
+    import resource
+
+    return round(resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0, 1)
+
 def main() -> dict:
     from lobeplan.report.plan import run_plan
     from lobeplan.site import load
@@ -45,4 +52,4 @@ def main() -> dict:
 
 
 if __name__ == "__main__":
-    print(json.dumps(main(), indent=2))
+    print(json.dumps({**main(), "peak_rss_mb": _peak_rss_mb()}, indent=2))

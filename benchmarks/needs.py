@@ -11,6 +11,13 @@ import time
 import numpy as np
 
 
+
+def _peak_rss_mb() -> float:
+    """Peak resident memory of this process (Linux reports ru_maxrss in KiB)."""
+    import resource
+
+    return round(resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0, 1)
+
 def main() -> None:
     t0 = time.perf_counter()
     from pyproj import Geod
@@ -52,7 +59,7 @@ def main() -> None:
         t_prepare += t2 - t1
         t_bands += t3 - t2
     total = time.perf_counter() - t0
-    print(json.dumps({
+    print(json.dumps({"peak_rss_mb": _peak_rss_mb(),
         "goals": len(sectors), "points_per_goal": n, "hours": 24, "bands": len(bands_hz),
         "prepare_goal_s": round(t_prepare, 3),
         "first_prepare_goal_s_incl_pyiri_import": round(import_done, 3),

@@ -15,6 +15,13 @@ from lobeplan.antenna.model import GROUND_CLASSES, ArrayOption, ArraySpec, Feed,
 from lobeplan.antenna.pattern import array_pattern
 
 
+
+def _peak_rss_mb() -> float:
+    """Peak resident memory of this process (Linux reports ru_maxrss in KiB)."""
+    import resource
+
+    return round(resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0, 1)
+
 def main(repeats: int = 30) -> dict:
     forced = State("diagonal", phase_deg=(0.0, -90.0, -180.0, -90.0))
     fed = State("lines", line_m=(5.0, 12.1, 19.0, 12.1))
@@ -41,4 +48,4 @@ def main(repeats: int = 30) -> dict:
 
 
 if __name__ == "__main__":
-    print(json.dumps(main(), indent=2))
+    print(json.dumps({**main(), "peak_rss_mb": _peak_rss_mb()}, indent=2))

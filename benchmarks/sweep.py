@@ -26,6 +26,13 @@ from lobeplan.site import load
 DEMO = Path(__file__).resolve().parent.parent / "data" / "demo" / "site.toml"
 
 
+
+def _peak_rss_mb() -> float:
+    """Peak resident memory of this process (Linux reports ru_maxrss in KiB)."""
+    import resource
+
+    return round(resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0, 1)
+
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--json", action="store_true")
@@ -57,7 +64,7 @@ def main() -> None:
         subprocess.run([sys.executable, "-m", "lobeplan", "plan", str(tmp), "--json"], check=True,
                        capture_output=True)
         plan_wall = time.perf_counter() - t0
-    print(json.dumps({"orientations": int(thetas.size), "fft_s": round(timing["fft"], 4),
+    print(json.dumps({"peak_rss_mb": _peak_rss_mb(), "orientations": int(thetas.size), "fft_s": round(timing["fft"], 4),
                       "direct_s": round(timing["direct"], 4),
                       "speedup": round(timing["direct"] / timing["fft"], 1),
                       "max_abs_diff_db": diff, "plan_wall_s": round(plan_wall, 3)}))
