@@ -13,6 +13,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
+from .antenna.layout import layout_positions_m
 from .antenna.model import GROUND_CLASSES, ArrayOption, ArraySpec, Feed, Ground, State
 from .errors import SiteError
 from .geo import locator as _locator
@@ -363,8 +364,6 @@ def _layout_points(r: _Reader, t: dict, key: str, layout: str, spacing: float | 
             raise r.fail(_join(key, name), f"does not apply to the {layout} layout; "
                          + (f"it takes {', '.join(_LAYOUT_KEYS[layout])}" if _LAYOUT_KEYS[layout]
                             else "it has one element and no spacing"))
-    if layout == "single":
-        return ((0.0, 0.0),)
     if layout == "custom":
         k = _join(key, "positions_m")
         if "positions_m" not in t:
@@ -377,18 +376,12 @@ def _layout_points(r: _Reader, t: dict, key: str, layout: str, spacing: float | 
             if not isinstance(p, list) or len(p) != 2:
                 raise r.fail(f"{k}[{i + 1}]", f"{_show(p)} is not an [along, across] pair in metres")
             pts.append(tuple(r.check_number(x, f"{k}[{i + 1}]", lo=-1000.0, hi=1000.0) for x in p))
-        for i in range(len(pts)):
-            for j in range(i):
-                if math.dist(pts[i], pts[j]) < 0.05:
-                    raise r.fail(k, f"elements {j + 1} and {i + 1} stand at the same place")
-        return tuple(pts)
-    assert spacing is not None
-    if layout == "pair":
-        return ((0.0, 0.0), (spacing, 0.0))
-    if layout == "square":
-        return ((0.0, 0.0), (spacing, 0.0), (spacing, spacing), (0.0, spacing))
-    n = r.number(t, "elements", key, lo=2, hi=16, integer=True, what="a whole number of elements from 2 to 16")
-    return tuple((i * spacing, 0.0) for i in range(n))
+        return layout_positions_m("custom", custom_m=pts)
+    n = None
+    if layout == "line":
+        n = r.number(t, "elements", key, lo=2, hi=16, integer=True,
+                     what="a whole number of elements from 2 to 16")
+    return layout_positions_m(layout, spacing, n)
 
 
 def _states(r: _Reader, v: Any, key: str, n: int, layout: str) -> tuple[State, ...]:

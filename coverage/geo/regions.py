@@ -48,7 +48,7 @@ from .paths import GEOD
 from .station import Station
 
 __all__ = ["CONTINENTS", "RegionError", "Region", "Disc", "GoalArea", "parse_region", "resolve", "sample_points",
-           "countries", "continent_geometry", "country_names",
+           "countries", "continent_geometry",
            "region_area", "region_points", "goal_area", "goal_points"]
 
 CONTINENTS = ("Africa", "Antarctica", "Asia", "Europe", "North America", "Oceania", "South America")
@@ -96,10 +96,6 @@ def _country_index() -> dict[str, int]:
             if key and key != "-99":
                 index.setdefault(key, row)
     return index
-
-
-def country_names() -> list[str]:
-    return sorted(str(n) for n in countries()["NAME"])
 
 
 def _parts(geom: BaseGeometry) -> list[Polygon]:
