@@ -3,9 +3,10 @@ score against baseline bearing.
 
 - Elevation panel, one row per band: the elevation cut of each switch state
   of the mapped option through its own beam (the true bearing of its peak at
-  the band's key takeoff angle), with each goal's takeoff-angle need (share
-  of its weight per degree of elevation) shaded behind, so one sees whether
-  the lobe sits where the needs are.
+  the band's key takeoff angle), with each goal's takeoff-angle need
+  (percent of its sampled point-hours per degree of elevation, so a goal
+  that is seldom open stays low) shaded behind, so one sees whether the
+  lobe sits where the needs are.
 - Orientation panel: a polar plot of the score (mean advantage over one
   vertical, dB) against the baseline bearing for every spacing option, the
   bearings the lot allows shaded, each option's best bearing marked.
@@ -60,18 +61,21 @@ def elevation_figure(site, plan):
             s = float(marg.sum())
             if s <= 0:
                 continue
-            share = 100.0 * marg / s
+            # the weights sum to the open fraction: a goal that is seldom open
+            # shows a low histogram, not a tall one
+            share = 100.0 * marg
             label = gb.goal_name + (" (long path)" if gb.path == "long" else "")
             if label in seen:
                 continue
             seen.add(label)
             col = NEED_COLOURS[k % len(NEED_COLOURS)]
+            open_text = "<1" if s < 0.005 else f"{100 * s:.0f}"
             need_ax.fill_between(ELEVATION_DEG, share, step="mid", color=col, alpha=0.45, linewidth=0,
-                                 label=f"need: {label}", gid=f"need:{band}:{label}")
+                                 label=f"need: {label} ({open_text}% open)", gid=f"need:{band}:{label}")
             top_share = max(top_share, float(share.max()))
             k += 1
         need_ax.set_ylim(0.0, max(top_share * 1.15, 1.0))
-        need_ax.set_ylabel("need, % per degree", fontsize=7.5, color="#6b5a2e")
+        need_ax.set_ylabel("need, % of point-hours per degree", fontsize=7.5, color="#6b5a2e")
         need_ax.tick_params(labelsize=7, colors="#6b5a2e")
 
         peak = -np.inf
