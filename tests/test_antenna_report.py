@@ -53,7 +53,8 @@ def _args(**kw):
     return SimpleNamespace(band=kw.get("band"), state=kw.get("state"), json=True, out=None)
 
 
-KEYS = {"band", "state", "spacing_m", "orientation_deg", "peak_gain_dbi", "peak_azimuth_deg",
+# the keys issue 3 names, plus the option name (two options may share a spacing)
+KEYS = {"band", "option", "state", "spacing_m", "orientation_deg", "peak_gain_dbi", "peak_azimuth_deg",
         "peak_elevation_deg", "front_to_back_db", "front_to_rear_db", "beamwidth_deg", "element_currents",
         "feedpoint_impedance_ohm", "azimuth_deg", "elevation_deg", "gain_dbi"}
 

@@ -107,6 +107,7 @@ def build(site, args=None) -> dict:
             sol = coupled_elements(spec, option, band.freq_hz)
             out.append({
                 "band": band.name,
+                "option": option.name,
                 "freq_mhz": round(band.freq_hz / 1e6, 6),
                 "spacing_m": None if option.layout in ("single", "custom") else option.spacing_m,
                 "ground_loss_ohm": spec.ground_loss_ohm,

@@ -87,6 +87,7 @@ def build(site, args=None) -> dict:
             true_gain = np.maximum(to_true_bearing(res.gain_dbi, orient), GAIN_FLOOR_DBI)
             out.append({
                 "band": band.name,
+                "option": option.name,
                 "state": state.name,
                 "spacing_m": _spacing(option),
                 "orientation_deg": orient,
