@@ -7,7 +7,7 @@ import pytest
 from pyproj import Geod
 
 from lobeplan.plan import sweep as S
-from lobeplan.plan.planner import (avoid_credit_cap_db, centrally_symmetric, distinct_maxima, in_allowed, make_plan,
+from lobeplan.plan.planner import (avoid_credit_cap_db, distinct_maxima, symmetry_order, in_allowed, make_plan,
                                    needs_for_site)
 from lobeplan.site import loads
 
@@ -263,20 +263,28 @@ def test_avoid_region_turns_the_beam_away():
     assert avoid_credit_cap_db(2) == pytest.approx(3.0103, abs=1e-4)
 
 
-def test_distinct_maxima_keep_10_degrees_and_merge_half_turns():
+def test_distinct_maxima_keep_10_degrees_and_merge_symmetric_turns():
     t = np.arange(360.0)
     s = np.cos(np.radians(2 * (t - 40))) + 0.01 * np.cos(np.radians(t - 40))
     allowed = np.ones(360, bool)
     picked = distinct_maxima(t, s, allowed)
     assert t[picked[0]] == 40 and 220 in t[picked].tolist()
-    merged = distinct_maxima(t, s, allowed, half_turn_same=True)
+    assert all(abs((a - b + 180) % 360 - 180) >= 10 for i, a in enumerate(t[picked]) for b in t[picked][:i])
+    merged = distinct_maxima(t, s, allowed, symmetry=2)
     assert t[merged].tolist() == [40.0]
+    s4 = np.cos(np.radians(4 * (t - 10)))  # four equal maxima 90 deg apart
+    assert t[distinct_maxima(t, s4, allowed, symmetry=4)].tolist() == [10.0]
+    assert len(distinct_maxima(t, s4, allowed, symmetry=2)) == 2
 
 
-def test_central_symmetry_of_layouts():
-    assert centrally_symmetric(((0, 0), (10, 0)))
-    assert centrally_symmetric(((0, 0), (5, 0), (5, 5), (0, 5)))
-    assert not centrally_symmetric(((0, 0), (8, 3), (3, 9)))
+def test_rotational_symmetry_of_layouts():
+    assert symmetry_order(((0, 0), (10, 0))) == 2
+    assert symmetry_order(((0, 0), (5, 0), (10, 0))) == 2
+    assert symmetry_order(((0, 0), (5, 0), (5, 5), (0, 5))) == 4
+    tri = ((0, 0), (10, 0), (5, 10 * math.sqrt(3) / 2))  # equilateral
+    assert symmetry_order(tri) == 3
+    assert symmetry_order(((0, 0), (8, 3), (3, 9))) == 1
+    assert symmetry_order(((0, 0),)) == 1
 
 
 def test_a_closed_goal_drops_out_of_the_score():

@@ -32,7 +32,7 @@ from ..propagation.needs import Needs, band_needs, prepare_goal
 from .sweep import correlate, floored, orientations, spectrum, weighted_quantile
 
 __all__ = ["avoid_credit_cap_db", "GoalBand", "OptionPlan", "Plan", "RankEntry", "GoalRow", "make_plan", "needs_for_site",
-           "in_allowed", "distinct_maxima", "score_option", "prepare_needs", "centrally_symmetric", "goal_rows"]
+           "in_allowed", "distinct_maxima", "score_option", "prepare_needs", "symmetry_order", "goal_rows"]
 
 DISTINCT_DEG = 10.0  # ranking: maxima at least this far apart
 WINDOW_DB = 1.0      # orientation sensitivity: bearings within this of the best
@@ -326,20 +326,30 @@ def _best(thetas, score, allowed, step_deg):
     return float(thetas[i]), best, (float(thetas[lo]), float(thetas[hi]))
 
 
-def centrally_symmetric(positions_m) -> bool:
-    """True when turning the layout by 180 deg about its centre gives the same ground plan."""
+def symmetry_order(positions_m) -> int:
+    """Largest m such that turning the layout by 360/m deg about its centre
+    gives the same ground plan (1: none; 2: pair, line; 4: square)."""
     pts = np.asarray(positions_m, dtype=float)
-    turned = 2 * pts.mean(axis=0) - pts
-    return all(np.min(np.hypot(*(pts - q).T)) < 1e-6 for q in turned)
+    if pts.shape[0] < 2:
+        return 1
+    centre = pts.mean(axis=0)
+    rel = pts - centre
+    scale = max(float(np.max(np.hypot(*rel.T))), 1e-9)
+    for m in range(min(pts.shape[0], 12), 1, -1):
+        a = 2 * np.pi / m
+        turned = rel @ np.array([[np.cos(a), np.sin(a)], [-np.sin(a), np.cos(a)]])
+        if all(np.min(np.hypot(*(rel - q).T)) < 1e-6 * scale for q in turned):
+            return m
+    return 1
 
 
 def distinct_maxima(thetas: np.ndarray, score: np.ndarray, allowed: np.ndarray,
-                    apart_deg: float = DISTINCT_DEG, half_turn_same: bool = False) -> list[int]:
+                    apart_deg: float = DISTINCT_DEG, symmetry: int = 1) -> list[int]:
     """Indices of local maxima (allowed bearings), best first, at least ``apart_deg`` apart.
 
-    With ``half_turn_same`` (a layout that is its own half turn: pair, line,
-    square), bearings theta and theta + 180 are the same ground plan with the
-    elements numbered the other way round, so they also count as near.
+    With a layout of rotational ``symmetry`` m (see :func:`symmetry_order`),
+    bearings theta and theta + k 360/m are the same ground plan with the
+    elements numbered another way round, so they count as near too.
     """
     n = thetas.size
     ok = allowed & np.isfinite(score)
@@ -348,21 +358,14 @@ def distinct_maxima(thetas: np.ndarray, score: np.ndarray, allowed: np.ndarray,
     s = np.where(ok, score, -np.inf)
     if n == 1:
         return [0]
+    period = 360.0 / max(int(symmetry), 1)
     is_peak = ok & (s >= np.roll(s, 1)) & (s >= np.roll(s, -1))
     cand = np.flatnonzero(is_peak)
     cand = cand[np.argsort(-s[cand], kind="stable")]
     picked: list[int] = []
     for c in cand:
-        near = False
-        for p in picked:
-            d = abs((thetas[c] - thetas[p] + 180.0) % 360.0 - 180.0)
-            if d < apart_deg:
-                near = True
-                break
-            if half_turn_same and abs(180.0 - d) < apart_deg:
-                near = True
-                break
-        if not near:
+        d = np.abs((thetas[c] - thetas[picked] + period / 2) % period - period / 2) if picked else np.array([])
+        if not np.any(d < apart_deg):
             picked.append(int(c))
     return picked
 
@@ -394,10 +397,10 @@ def goal_rows(plan_option: OptionPlan, goal_bands, theta_index: int, ref: dict) 
 
 def _ranking(site, goal_bands, option_plans, ref, top: int = 5) -> tuple[RankEntry, ...]:
     cands = []
-    symmetric = {o.name: centrally_symmetric(o.positions_m) for o in site.array.options}
+    symmetry = {o.name: symmetry_order(o.positions_m) for o in site.array.options}
     for op in option_plans:
         for idx in distinct_maxima(op.orientation_deg, op.score_db, op.allowed,
-                                   half_turn_same=symmetric[op.option]):
+                                   symmetry=symmetry[op.option]):
             cands.append((float(op.score_db[idx]), op, idx))
     cands.sort(key=lambda c: -c[0])
     out = []
