@@ -218,7 +218,10 @@ def test_geojson_validates(site_plan):
 
 
 def test_lobe_vertex_at_its_distance():
-    # a circle of 3000 km centred near the antimeridian: every vertex 3000 km away on WGS84
+    # a circle of 3000 km centred near the antimeridian: every vertex 3000 km away on WGS84.
+    # The vertices are made with pyproj's direct geodesic; the inverse geodesic
+    # (Karney 2013) checks that unwrapping and cutting at +-180 moved none of
+    # them (10 m: far below the 6-decimal rounding's 0.1 m, far above float noise).
     from lobeplan.geo.paths import GEOD
 
     geom = lobe_geometry(178.0, -17.0, np.full(360, 3000.0))
@@ -267,3 +270,77 @@ def test_map_verb_json_has_no_date(demo_path, capsys, tmp_path):
     assert [m["file"] for m in result["maps"]] == ["map-20m.png"]
     assert "2026" not in text
     assert (out / "map-20m.png").is_file()
+
+
+CARDIOID_SITE = """
+[station]
+name = "Southern test lot"
+lat = {lat}
+lon = {lon}
+[array]
+height_m = 10.56
+radius_m = 0.01
+ground = "perfect"
+ground_loss_ohm = 0
+layout = "pair"
+spacing_m = 10.56
+orientation_deg = {orientation}
+[[array.state]]
+name = "toward"
+phase_deg = [0, -90]
+[[band]]
+name = "40 m"
+freq_mhz = 7.1
+[[goal]]
+name = "ring"
+region = "circle:{goal_lat},{goal_lon},1500"
+[propagation]
+points_per_goal = 60
+"""
+
+
+def _cardioid(lat, lon, orientation, goal_lat, goal_lon):
+    site = loads(CARDIOID_SITE.format(lat=lat, lon=lon, orientation=orientation, goal_lat=goal_lat,
+                                      goal_lon=goal_lon))
+    return site, run_plan(site, True)
+
+
+@pytest.mark.parametrize("orientation", [30.0, 200.0])
+def test_lobe_points_along_the_baseline_toward_the_lagging_element(orientation):
+    # CHECKS.md (common practice): two verticals a quarter wave apart fed
+    # 0 / -90 deg beam toward the lagging element, which the conventions put
+    # along the baseline bearing. On an azimuthal map x is east and y north, so
+    # the lobe's farthest vertex lies at atan2(x, y) = the baseline bearing.
+    site, plan = _cardioid(45.0, -93.0, orientation, 30.0, -60.0)
+    scene = band_scene(site, plan, "40 m")
+    fig = map_figure(scene, "2026-01-01")
+    ax = _map_axes(fig)
+    patch = next(p for p in ax.patches if p.get_gid() == "lobe:toward")
+    xy = patch.get_xy()
+    far = xy[int(np.argmax(np.hypot(xy[:, 0], xy[:, 1])))]
+    bearing = math.degrees(math.atan2(far[0], far[1])) % 360.0
+    assert abs((bearing - orientation + 180.0) % 360.0 - 180.0) <= 1.5
+    assert abs((scene.lobes[0].peak_bearing_deg - orientation + 180.0) % 360.0 - 180.0) <= 1.5
+    matplotlib.pyplot.close(fig)
+
+
+def test_geojson_valid_for_a_southward_lobe_and_a_circle_across_180():
+    # A station at 45 S whose cardioid points south reaches over the South
+    # Pole (5000 km away, 45 deg of arc, computed); a circle goal centred near
+    # the antimeridian is cut in two. Every feature must be a valid polygon
+    # with rings of four or more positions (RFC 7946 sec. 3.1.6).
+    site, plan = _cardioid(-45.0, 170.0, 180.0, -17.0, 179.0)
+    doc = json.loads(json.dumps(plan_geojson(site, plan), allow_nan=False))
+    lobes = [f for f in doc["features"] if f["properties"]["kind"] == "lobe"]
+    goals = [f for f in doc["features"] if f["properties"]["kind"] == "goal"]
+    assert lobes and goals
+    for f in lobes + goals:
+        geom = shape(f["geometry"])
+        assert geom.is_valid, shapely.is_valid_reason(geom)
+        for poly in f["geometry"]["coordinates"]:
+            for ring in poly:
+                assert len(ring) >= 4
+                _ring_ok(ring)
+    lobe = shape(lobes[0]["geometry"])
+    assert lobe.contains(shapely.Point(0.0, -89.5))  # over the pole
+    assert len(shape(goals[0]["geometry"]).geoms) == 2  # the circle is cut at +-180

@@ -339,7 +339,15 @@ def _polar_region(lon0: float, lat0: float, az_from: float, az_to: float,
                                      ring_az, ring_d * 1000.0)
             cells.extend(_cell_polygon(np.asarray(lons), np.asarray(lats)))
     merged = shapely.union_all([c for c in cells if c.is_valid and c.area > 0]).buffer(0)
-    return MultiPolygon(_parts(merged))
+    # where cells were cut at +-180 deg or closed through a pole, the union
+    # can leave sliver holes along the seams; a real hole (an annulus) is
+    # far larger than a thousandth of its polygon
+    clean = []
+    for part in _parts(merged):
+        holes = [h for h in part.interiors if Polygon(h).area > 1e-3 * Polygon(part.exterior).area]
+        clean.append(Polygon(part.exterior, holes))
+    # a speck that sat in a dropped sliver now overlaps its host: merge again
+    return MultiPolygon(_parts(shapely.union_all(clean)))
 
 
 def _read_file(name: str, base_dir: str) -> MultiPolygon:

@@ -20,7 +20,7 @@ Drawing choices (each one fixes a problem seen while building it):
   project the countries once.
 
 Colours are our own scheme, "fieldbook": dun land on a pale slate sea, goals
-from ember (the plan does worse than one vertical) through parchment (no
+from ember (the plan does worse than one vertical) through lavender (no
 better) to spruce (better), lobes in ink colours.
 """
 from __future__ import annotations
@@ -55,14 +55,15 @@ RING = "#6f7d87"
 AVOID = "#7a1f3d"
 CLOSED = "#9a9a92"
 STATE_COLOURS = ("#1f4e79", "#c0522f", "#4f7f2f", "#7b4f9d", "#b8860b", "#1d7f86", "#8a3b5b", "#505050")
-_GOAL_STOPS = ((0.0, "#8c3a1f"), (0.35, "#e2a27a"), (0.5, "#f1e8d2"), (0.68, "#8fc0a5"),
+# the neutral stop is a pale lavender, so a goal near 0 dB never reads as bare (dun) land
+_GOAL_STOPS = ((0.0, "#8c3a1f"), (0.35, "#e2a27a"), (0.5, "#e4dcf2"), (0.68, "#8fc0a5"),
                (0.85, "#3f8a72"), (1.0, "#15463f"))
 
 
 def _advantage_cmap():
     from matplotlib.colors import LinearSegmentedColormap
 
-    return LinearSegmentedColormap.from_list("ember-parchment-spruce", list(_GOAL_STOPS))
+    return LinearSegmentedColormap.from_list("ember-lavender-spruce", list(_GOAL_STOPS))
 
 
 @functools.lru_cache(maxsize=8)
@@ -226,7 +227,7 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
     import matplotlib.pyplot as plt
     from matplotlib.collections import PathCollection
     from matplotlib.patches import PathPatch, Polygon, Rectangle
-    from shapely.geometry import MultiLineString
+    from shapely.geometry import MultiLineString, Point
 
     from .. import __version__ as version
 
@@ -235,8 +236,11 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
     fig.patch.set_facecolor("white")
     proj, src = projection(scene.lon_deg, scene.lat_deg)
 
-    diam = min(w_in - 1.4, 6.9)
     top_gap = 1.7
+    # below the map: the legends (0.72 in gap, colour bar, ruler: about 2.3 in)
+    # and the two footer lines (0.6 in); Letter is shorter than A4, so its map shrinks
+    below_in = 2.95
+    diam = min(w_in - 1.4, 6.9, h_in - top_gap - below_in)
     left = (w_in - diam) / 2.0
     bottom = h_in - top_gap - diam
     ax = fig.add_axes([left / w_in, bottom / h_in, diam / w_in, diam / h_in], projection=proj)
@@ -269,9 +273,15 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
         label_spots.append((g, _label_point(proj, src, g.geometry)))
 
     for a in scene.avoid:
+        # the hatch takes the edge colour; the outline is stroked separately,
+        # without the cuts along +-180 deg and the South Pole
         for p in _paths(proj, src, a.geometry):
-            ax.add_patch(PathPatch(p, facecolor="none", edgecolor=AVOID, linewidth=0.9, hatch="xxx",
+            ax.add_patch(PathPatch(p, facecolor="none", edgecolor=AVOID, linewidth=0.0, hatch="xxx",
                                    zorder=2.4, gid=f"avoid:{a.region}"))
+        segs = outline_lines(a.geometry)
+        if segs:
+            for p in _paths(proj, src, MultiLineString(segs)):
+                ax.add_patch(PathPatch(p, facecolor="none", edgecolor=AVOID, linewidth=0.9, zorder=2.45))
 
     # range rings, labelled along the quietest bearing
     quiet = _quiet_bearing(scene, [math.degrees(math.atan2(p[0], p[1])) for _, p in label_spots if p])
@@ -298,7 +308,7 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
     for i, lobe in enumerate(scene.lobes):
         col = STATE_COLOURS[i % len(STATE_COLOURS)]
         lx, ly = _xy(AZIMUTH_DEG, lobe.radius_km)
-        ax.add_patch(Polygon(np.column_stack([lx, ly]), closed=True, facecolor=col, alpha=0.07,
+        ax.add_patch(Polygon(np.column_stack([lx, ly]), closed=True, facecolor=col, alpha=0.12,
                              edgecolor="none", zorder=4, gid=f"lobe:{lobe.state}"))
         ax.add_patch(Polygon(np.column_stack([lx, ly]), closed=True, facecolor="none", edgecolor=col,
                              linewidth=1.5, zorder=4.5))
@@ -314,11 +324,17 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
             value = _fmt_db(g.advantage_db)
         x, y, size_m = spot
         offset = (0.0, 0.0)
-        if size_m < 3.0e6:  # a small region: put the label beside it, away from the station
+        leader = None
+        if size_m < 3.0e6:  # a small region: put the label beside it, away from the station, with a leader
             rr = math.hypot(x, y) or 1.0
             offset = (30.0 * x / rr, 30.0 * y / rr)
-        ax.annotate(f"{g.name}\n{value}", (x, y), xytext=offset, textcoords="offset points", fontsize=7,
-                    ha="center", va="center", color=INK, zorder=7, linespacing=1.1, path_effects=_halo(2.5))
+            leader = dict(arrowstyle="-", linewidth=0.6, color=INK, shrinkA=0.0, shrinkB=0.0)
+        name = g.name
+        if g.geometry.contains(Point(scene.lon_deg, scene.lat_deg)):
+            name += " (holds the station)"
+        ax.annotate(f"{name}\n{value}", (x, y), xytext=offset, textcoords="offset points", fontsize=7,
+                    ha="center", va="center", color=INK, zorder=7, linespacing=1.1, path_effects=_halo(2.5),
+                    arrowprops=leader)
 
     _rim(ax)
     _title_block(fig, scene, date_text, w_in, h_in)
@@ -372,7 +388,9 @@ def _title_block(fig, scene: BandScene, date_text: str, w_in: float, h_in: float
     lon = f"{abs(scene.lon_deg):.2f}°{'E' if scene.lon_deg >= 0 else 'W'}"
     spacing = "" if scene.spacing_m is None else f", {scene.spacing_m:.2f} m spacing"
     score = "" if scene.score_db is None else f"; score {scene.score_db:+.2f} dB over one vertical"
-    fig.text(x0, at(0.86), f"{scene.locator}  ·  {lat} {lon}  ·  {scene.option} ({scene.layout}{spacing})  ·  "
+    # a default option name already says layout and spacing ("pair 10.5 m")
+    what = scene.option if scene.option.startswith(scene.layout) else f"{scene.option} ({scene.layout}{spacing})"
+    fig.text(x0, at(0.86), f"{scene.locator}  ·  {lat} {lon}  ·  {what}  ·  "
              f"baseline along {scene.orientation_deg:.1f}°{score}", fontsize=8.3, color=INK, va="baseline")
     how = ("median takeoff angle the goals need on this band" if scene.takeoff_from_needs
            else "no goal opens on this band: elevation of the first state's peak")

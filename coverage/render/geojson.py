@@ -4,9 +4,10 @@ Every band's map scene (:func:`.scene.band_scene`) becomes features that any
 GIS opens:
 
 - ``kind = "lobe"``: one polygon per (band, state). Its vertex at bearing b
-  lies along b from the station at the geodesic distance that the map uses
-  for the radius: ``lobe_peak_km`` at the band's peak gain, falling linearly
-  in dB to the station at ``lobe_floor_db`` below it.
+  lies along b from the station at the map's radius taken as a WGS84
+  geodesic distance (the map itself draws it on a 6371 km sphere):
+  ``lobe_peak_km`` at the band's peak gain, falling linearly in dB to the
+  station at ``lobe_floor_db`` below it.
 - ``kind = "goal"``: the goal region with, for every band and path, the
   state that serves it and its advantage over one vertical.
 - ``kind = "avoid"``: the regions to keep in the rear.
@@ -116,7 +117,9 @@ def lobe_geometry(lon0_deg: float, lat0_deg: float, radius_km: np.ndarray):
     lons, lats = _ring_points(lon0_deg, lat0_deg, radius_km)
     lon_u = np.unwrap(np.append(lons, lons[0]), period=360.0)
     winding = lon_u[-1] - lon_u[0]
-    ring = list(zip(lon_u[:-1], lats))
+    # every vertex, and the first one again, unwrapped: a ring that winds
+    # round a pole keeps its last wedge (from the last bearing back to 0)
+    ring = list(zip(lon_u, np.append(lats, lats[0])))
     if abs(winding) > 180.0:  # winds round a pole: close the ring along it
         pole = 90.0 if winding < 0 else -90.0   # clockwise bearings wind west round the North Pole
         ring += [(lon_u[-1], pole), (lon_u[0], pole)]
@@ -124,21 +127,33 @@ def lobe_geometry(lon0_deg: float, lat0_deg: float, radius_km: np.ndarray):
     parts = []
     for p in _polygons(poly):
         parts.extend(_split_at_antimeridian(p))
-    if not parts:
+    # pieces cut apart and shifted back may touch along a shared meridian:
+    # merge them, so that the result is a valid MultiPolygon
+    merged = shapely.make_valid(shapely.union_all(parts)) if parts else None
+    polys = [p for p in _polygons(merged) if p.area > 0] if merged is not None else []
+    if not polys:
         return None
-    return MultiPolygon(parts)
+    return MultiPolygon(polys)
 
 
 def _coords(geom) -> list:
-    """GeoJSON MultiPolygon coordinates, right-hand rule, rounded."""
+    """GeoJSON MultiPolygon coordinates, right-hand rule, on a 1e-6 deg grid.
+
+    The geometry is snapped to the grid (``shapely.set_precision`` keeps it
+    valid there) before the rings are written, so rounding cannot pinch or
+    collapse a ring (RFC 7946 sec. 3.1.6: four or more positions).
+    """
+    import shapely
     from shapely.geometry.polygon import orient
 
+    snapped = shapely.make_valid(shapely.set_precision(geom, 10.0 ** -_DIGITS))
     out = []
-    for p in _polygons(geom):
+    for p in _polygons(snapped):
         p = orient(p, 1.0)
-        rings = [p.exterior, *p.interiors]
-        out.append([[[round(float(x), _DIGITS), round(float(y), _DIGITS)] for x, y in r.coords] for r in rings])
-    return out
+        rings = [[[round(float(x), _DIGITS), round(float(y), _DIGITS)] for x, y in r.coords]
+                 for r in [p.exterior, *p.interiors]]
+        out.append([r for r in rings if len(r) >= 4])
+    return [poly for poly in out if poly and len(poly[0]) >= 4]
 
 
 def _feature(geometry: dict, properties: dict) -> dict:
