@@ -6,7 +6,7 @@ import pytest
 
 from lobeplan.antenna.mom import (C0_M_S, emf_dipole_mutual_ohm, emf_dipole_self_ohm,
                                   emf_monopole_input_resistance_ohm, emf_monopole_mutual_ohm,
-                                  emf_monopole_self_ohm, segment_count, solve_elements)
+                                  emf_monopole_self_ohm, solve_elements)
 
 F = 10e6
 LAM = C0_M_S / F

@@ -26,7 +26,7 @@ import numpy as np
 
 from ..antenna.pattern import array_pattern, vertical_gain_dbi
 from ..geo.paths import goal_paths
-from ..geo.regions import goal_points, region_points
+from ..geo.regions import region_points
 from ..grid import N_AZIMUTH
 from ..propagation.needs import Needs, band_needs, prepare_goal
 from .sweep import correlate, floored, orientations, spectrum, weighted_quantile
@@ -117,8 +117,6 @@ class Plan:
     ranking: tuple[RankEntry, ...]
     reference_gain_dbi: dict        # band name -> (91,) single-vertical gain
     caveats: tuple[str, ...]
-    step_deg: float
-    fixed: bool
 
 
 def in_allowed(thetas_deg: np.ndarray, allowed: tuple[tuple[float, float], ...]) -> np.ndarray:
@@ -150,12 +148,12 @@ def needs_for_site(site, progress: Callable[[int, int], None] | None = None
             lons, lats = region_points(site, text, clip, key)
             bearing, dist = goal_paths(site.station, lons, lats, path)
             base = len(geometries)
-            inner = None
-            if progress is not None:
-                def inner(done: int, total: int, base=base) -> None:
-                    progress(base + (done / total if total else 1.0), n_total)
+
+            def inner(done: int, total: int, base=base) -> None:
+                progress(base + (done / total if total else 1.0), n_total)
+
             geometries[k] = prepare_goal(prop, site.station.lon_deg, site.station.lat_deg, lons, lats,
-                                         bearing, dist, path, progress=inner)
+                                         bearing, dist, path, progress=inner if progress is not None else None)
         return geometries[k]
 
     out = []
@@ -220,12 +218,12 @@ def make_plan(site, goal_bands: tuple[GoalBand, ...] | None = None,
             score = (weights[open_rows, None] * values[open_rows]).sum(axis=0) / weights[open_rows].sum()
         else:
             score = np.full(thetas.size, np.nan)
-        best_theta, best_score, window = _best(thetas, score, allowed, orient.step_deg)
+        best_theta, best_score, window = _best(thetas, score, allowed)
         option_plans.append(OptionPlan(option.name, option.layout, option.spacing_m, thetas, score,
                                        allowed, best_theta, best_score, window, values, best_state,
                                        tuple(s.name for s in option.states), patterns))
     ranking = _ranking(site, goal_bands, option_plans, ref)
-    return Plan(tuple(goal_bands), tuple(option_plans), ranking, ref, caveats, orient.step_deg, fixed)
+    return Plan(tuple(goal_bands), tuple(option_plans), ranking, ref, caveats)
 
 
 def prepare_needs(goal_bands, ref: dict) -> list[dict]:
@@ -306,7 +304,7 @@ def _rotate(gain_frame: np.ndarray, theta_deg: float) -> np.ndarray:
     return np.fft.irfft(spec, n=N_AZIMUTH, axis=1)
 
 
-def _best(thetas, score, allowed, step_deg):
+def _best(thetas, score, allowed):
     ok = allowed & np.isfinite(score)
     if not ok.any():
         return None, None, None

@@ -12,7 +12,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..grid import AZIMUTH_DEG, ELEVATION_DEG
+from ..grid import AZIMUTH_DEG, ELEVATION_DEG, to_true_bearing
 
 __all__ = ["Lobe", "GoalShade", "AvoidShade", "BandScene", "band_scene", "chosen_option",
            "key_takeoff_deg", "true_bearing_row", "lobe_radius_km", "slug"]
@@ -124,13 +124,8 @@ def key_takeoff_deg(goal_bands, band_name: str) -> float | None:
 
 
 def true_bearing_row(gain_frame: np.ndarray, elevation_deg: float, orientation_deg: float) -> np.ndarray:
-    """One elevation row of an array-frame pattern, over true bearings 0..359.
-
-    True bearing = frame azimuth + baseline bearing; a fractional bearing is
-    interpolated linearly (circularly).
-    """
-    row = np.asarray(gain_frame, dtype=float)[int(round(elevation_deg))]
-    return np.interp(AZIMUTH_DEG - orientation_deg, AZIMUTH_DEG, row, period=360.0)
+    """One elevation row of an array-frame pattern, over true bearings 0..359."""
+    return to_true_bearing(np.asarray(gain_frame, dtype=float)[int(round(elevation_deg))], orientation_deg)
 
 
 def lobe_radius_km(gain_dbi: np.ndarray, top_dbi: float, floor_db: float, peak_km: float) -> np.ndarray:

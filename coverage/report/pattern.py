@@ -8,7 +8,7 @@ import numpy as np
 
 from ..antenna.pattern import GAIN_FLOOR_DBI, array_pattern, pattern_figures
 from ..errors import UsageError
-from ..grid import AZIMUTH_DEG, ELEVATION_DEG
+from ..grid import AZIMUTH_DEG, ELEVATION_DEG, to_true_bearing
 
 __all__ = ["add_arguments", "build", "format_text", "write_files",
            "select_bands", "select_states", "to_true_bearing", "current_rows", "pair"]
@@ -39,15 +39,6 @@ def select_states(site, name):
         names = list(dict.fromkeys(s.name for _, s in pairs))
         raise UsageError(f"--state: no state {name!r}; the site has: " + ", ".join(repr(n) for n in names))
     return chosen
-
-
-def to_true_bearing(gain_frame: np.ndarray, orientation_deg: float) -> np.ndarray:
-    """Resample a frame pattern onto true bearings 0..359 (linear, circular)."""
-    src = (AZIMUTH_DEG - orientation_deg) % 360.0
-    lo = np.floor(src).astype(int) % 360
-    hi = (lo + 1) % 360
-    w = src - np.floor(src)
-    return gain_frame[:, lo] * (1.0 - w) + gain_frame[:, hi] * w
 
 
 def pair(z) -> list[float]:
