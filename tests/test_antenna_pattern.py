@@ -215,3 +215,19 @@ def test_fed_state_runs_and_changes_with_band():
     assert not np.allclose(r1.base_current_a, r2.base_current_a)
     assert r1.element_power_w.sum() + r1.line_loss_w == pytest.approx(1.0, rel=1e-9)
     assert r1.line_loss_w > 0
+
+
+def test_lobes_lists_twin_beams_in_a_fixed_order():
+    # common practice: a pair at 0.35 wavelength fed 0/-90 deg has twin beams
+    # symmetric about the baseline; both must be listed, and equal gains
+    # must come out in the same order whatever the round-off
+    from lobeplan.antenna.pattern import lobe_bearings_deg
+
+    az = np.radians(np.arange(360.0))
+    row = 10 * np.log10(np.abs(1 + np.exp(1j * (2 * np.pi * 0.35 * np.cos(az) - np.pi / 2))) ** 2 + 1e-9)
+    lobes = lobe_bearings_deg(row)
+    assert len(lobes) == 2
+    assert [round(b) for b, _ in lobes] == sorted(round(b) for b, _ in lobes)
+    noisy = row + np.where(np.arange(360) > 180, 1e-9, 0.0)
+    assert [round(b, 3) for b, _ in lobe_bearings_deg(noisy)] == [round(b, 3) for b, _ in lobes]
+    assert lobe_bearings_deg(np.zeros(360)) == ()

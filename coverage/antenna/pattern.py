@@ -43,6 +43,8 @@ __all__ = [
     "state_currents",
     "state_drive",
     "gain_from_currents_dbi",
+    "LOBE_WINDOW_DB",
+    "lobe_bearings_deg",
 ]
 
 GAIN_FLOOR_DBI = -60.0
@@ -288,3 +290,50 @@ def pattern_figures(gain_dbi: np.ndarray) -> dict:
         "front_to_rear_db": float(min(peak - rear, RATIO_CAP_DB)),
         "beamwidth_deg": width,
     }
+
+
+LOBE_WINDOW_DB = 1.0
+"""A lobe is listed when its peak is within this of the row's strongest."""
+
+_TIE_DB = 1e-6  # gains this close count as equal, so ties break the same on every machine
+
+
+def lobe_bearings_deg(row_dbi: np.ndarray, within_db: float = LOBE_WINDOW_DB) -> tuple[tuple[float, float], ...]:
+    """Every lobe of one circular azimuth row within ``within_db`` of its peak.
+
+    Parameters
+    ----------
+    row_dbi : ndarray, shape (n,)
+        Gain over n equally spaced azimuths 0, 360/n, ... (deg), circular.
+    within_db : float
+        Lobes whose peak is more than this below the row's peak are left out.
+
+    Returns
+    -------
+    tuple of (azimuth_deg, peak_dbi)
+        Strongest first; the azimuth is refined by a parabola through the
+        three samples around each local maximum. Gains are compared after
+        rounding to 1e-6 dB and equal lobes are ordered by azimuth, so twin
+        beams come out in the same order on every machine. A row without
+        any maximum (omnidirectional) has no lobe: ``()``.
+    """
+    g = np.asarray(row_dbi, dtype=float)
+    n = g.size
+    q = np.round(g / _TIE_DB)
+    if n < 3 or q.max() == q.min():
+        return ()
+    step = 360.0 / n
+    left, right = np.roll(q, 1), np.roll(q, -1)
+    # a plateau of equal samples counts once, at its first sample
+    peaks = np.flatnonzero((q > left) & (q >= right))
+    top = float(np.max(g))
+    out = []
+    for i in peaks:
+        if g[i] < top - within_db - _TIE_DB:
+            continue
+        lo, c, hi = g[(i - 1) % n], g[i], g[(i + 1) % n]
+        curv = lo - 2.0 * c + hi
+        off = 0.0 if curv >= 0.0 else float(np.clip(0.5 * (lo - hi) / curv, -0.5, 0.5))
+        out.append((round(float((i + off) * step) % 360.0, 6), float(c)))
+    out.sort(key=lambda lobe: (-round(lobe[1] / _TIE_DB), lobe[0]))
+    return tuple(out)
