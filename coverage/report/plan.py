@@ -8,7 +8,7 @@ import math
 from pathlib import Path
 
 from ..safety import CAUTIONS
-from ..site import height_caveats
+from ..site import height_caveats, mesh_caveats
 
 __all__ = ["add_arguments", "check_arguments", "build", "build_from_plan", "format_text", "write_files", "run_plan"]
 
@@ -82,7 +82,7 @@ def build_from_plan(site, plan) -> dict:
         "ranking": ranking,
         "spacing_comparison": comparison,
         "orientation_scores": scores,
-        "caveats": list(plan.caveats) + list(height_caveats(site)),
+        "caveats": list(plan.caveats) + list(height_caveats(site)) + list(mesh_caveats(site)),
         "cautions": list(CAUTIONS),
     }
 
