@@ -44,6 +44,7 @@ __all__ = [
     "line_load_current_a",
     "drive_forced",
     "drive_fed",
+    "drive_chains",
     "design_line_lengths",
     "quarter_wave_forcing",
     "design_l_network",
@@ -179,7 +180,26 @@ def drive_fed(z_base_ohm: np.ndarray, feed: Feed, freq_hz: float, line_m) -> Dri
     Drive
         True base currents for 1 W into the junction.
     """
-    m = line_chain_matrix(feed, freq_hz, np.asarray(line_m, dtype=float))
+    return drive_chains(z_base_ohm, line_chain_matrix(feed, freq_hz, np.asarray(line_m, dtype=float)))
+
+
+def drive_chains(z_base_ohm: np.ndarray, chains: np.ndarray) -> Drive:
+    """Branches from one junction to every base, each a chain (ABCD) matrix.
+
+    Parameters
+    ----------
+    z_base_ohm : ndarray of complex, shape (n_el, n_el)
+    chains : ndarray of complex, shape (n_el, 2, 2)
+        (V_J, I_branch) = M_e (V_e, I_e) for each element's branch (a line,
+        possibly with lumped parts at its junction end).
+
+    Returns
+    -------
+    Drive
+        True base currents for 1 W into the junction; ``line_loss_w`` is all
+        the power lost between the junction and the bases.
+    """
+    m = np.asarray(chains, dtype=complex)
     a, b, c, d = m[:, 0, 0], m[:, 0, 1], m[:, 1, 0], m[:, 1, 1]
     # V_J 1 = diag(A) Z I + diag(B) I  ->  I per volt at the junction
     i = np.linalg.solve(a[:, None] * z_base_ohm + np.diag(b), np.ones(len(a), dtype=complex))
@@ -216,7 +236,7 @@ def _junction_voltage(feed, freq_hz, length_m, v, i):
 
 
 def design_line_lengths(z_base_ohm: np.ndarray, feed: Feed, freq_hz: float,
-                        wanted=None, min_length_m: float = 0.0) -> LineDesign | None:
+                        wanted=None, min_length_m=0.0) -> LineDesign | None:
     """Line lengths of the given cable that deliver the wanted base currents.
 
     The wanted currents fix the base voltages through the coupled impedances;
@@ -236,8 +256,9 @@ def design_line_lengths(z_base_ohm: np.ndarray, feed: Feed, freq_hz: float,
     wanted : array_like of complex, shape (n_el,), optional
         Relative base currents; default equal amplitude, element 2 at -90 deg
         (two elements only).
-    min_length_m : float
-        Shortest acceptable line (the lines must reach the junction).
+    min_length_m : float or array_like, shape (n_el,)
+        Shortest acceptable line, one for all or one per element (each line
+        must reach from the junction to its element).
 
     Returns
     -------
@@ -253,8 +274,9 @@ def design_line_lengths(z_base_ohm: np.ndarray, feed: Feed, freq_hz: float,
     w = w / w[0]
     v = z_base_ohm @ w
     lam = line_wavelength_m(feed, freq_hz)
-    grid = min_length_m + np.linspace(0.0, lam, 721)
-    vj = np.stack([_junction_voltage(feed, freq_hz, grid, v[e], w[e]) for e in range(n)])
+    lo = np.broadcast_to(np.asarray(min_length_m, dtype=float), (n,)).copy()
+    grids = lo[:, None] + np.linspace(0.0, lam, 721)[None, :]
+    vj = np.stack([_junction_voltage(feed, freq_hz, grids[e], v[e], w[e]) for e in range(n)])
     scale = float(np.max(np.abs(vj)))
 
     def residual(lengths):
@@ -267,18 +289,23 @@ def design_line_lengths(z_base_ohm: np.ndarray, feed: Feed, freq_hz: float,
 
     # seeds: the best grid pairs of element 1 against element 2
     gap = np.abs(vj[0][:, None] - vj[1][None, :])
-    order = np.argsort(gap, axis=None)[:40]
+    order = np.argsort(gap, axis=None)[:400]
     seeds = []
+    picked: list[tuple[int, int]] = []
     for flat in order:
         i1, i2 = np.unravel_index(flat, gap.shape)
-        start = [grid[i1], grid[i2]]
+        # distinct basins only: neighbouring grid pairs lead to the same solution
+        if any(abs(int(i1) - a) < 12 and abs(int(i2) - b) < 12 for a, b in picked) or len(picked) >= 12:
+            continue
+        picked.append((int(i1), int(i2)))
+        start = [grids[0][i1], grids[1][i2]]
         for e in range(2, n):  # remaining lines: nearest junction voltage on their grid
-            start.append(grid[int(np.argmin(np.abs(vj[e] - vj[0][i1])))])
+            start.append(grids[e][int(np.argmin(np.abs(vj[e] - vj[0][i1])))])
         seeds.append(start)
     from scipy.optimize import least_squares  # imported here only: it costs 0.6 s
 
     found = []
-    lo, hi = min_length_m, min_length_m + 2.0 * lam
+    hi = lo + 2.0 * lam
     for start in seeds:
         sol = least_squares(residual, np.array(start), bounds=(lo, hi), xtol=1e-12, ftol=1e-12)
         found.append((float(np.max(np.abs(sol.fun))), float(np.sum(sol.x)), tuple(sol.x)))
