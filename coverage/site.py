@@ -235,9 +235,12 @@ def load(path: str | Path) -> Site:
 _TOP = ("station", "array", "feed", "band", "goal", "propagation", "map")
 _STATION = ("name", "locator", "lat", "lon")
 _ARRAY = ("height_m", "radius_m", "layout", "spacing_m", "elements", "positions_m", "orientation_deg",
-          "orientation_step_deg", "allowed_orientation_deg", "ground", "ground_loss_ohm", "state", "option")
-_OPTION = ("name", "layout", "spacing_m", "elements", "positions_m", "state")
-_STATE = ("name", "phase_deg", "amplitude", "line_m")
+          "orientation_step_deg", "allowed_orientation_deg", "ground", "ground_loss_ohm", "state", "option",
+          "design_band", "forced_bands", "junction_m", "line_slack_m")
+_OPTION = ("name", "layout", "spacing_m", "elements", "positions_m", "state", "design_band", "forced_bands",
+           "junction_m")
+_STATE = ("name", "phase_deg", "amplitude", "line_m", "design_band", "forced_bands")
+_NETWORK_KEYS = ("design_band", "forced_bands")
 _FEED = ("z0_ohm", "velocity_factor", "loss_db_per_100m_at_10mhz")
 _BAND = ("name", "freq_mhz", "edges_mhz")
 _GOAL = ("name", "region", "weight", "bands", "path", "clip", "avoid", "avoid_weight")
@@ -265,6 +268,7 @@ def loads(text: str, file: str = "<site>", base_dir: str = ".") -> Site:
     station = _station(r, doc["station"])
     array, orientation = _array(r, doc["array"], doc.get("feed", {}))
     bands = _bands(r, doc["band"])
+    array = _resolve_networks(r, doc["array"], array, bands)
     goals = _goals(r, doc["goal"], bands)
     _check_height(r, array, bands)
     prop = _propagation(r, doc.get("propagation", {}))
@@ -299,6 +303,97 @@ def height_caveats(site: "Site") -> tuple[str, ...]:
             out.append(f"On {b.name} the elements are {h:.2f} wavelength tall, outside the 0.1-0.75 wavelength "
                        "range the element model is checked over.")
     return tuple(out)
+
+
+def _band_ref(r: _Reader, v: Any, key: str, band_names: tuple[str, ...]) -> str:
+    if not isinstance(v, str) or v not in band_names:
+        close = difflib.get_close_matches(v, band_names, n=1, cutoff=0.5) if isinstance(v, str) else []
+        hint = f" (did you mean {close[0]!r}?)" if close else ""
+        raise r.fail(key, f"{_show(v)} is not a band of this site{hint}; the bands are "
+                     + ", ".join(repr(n) for n in band_names))
+    return v
+
+
+def _network_keys(r: _Reader, t: dict, key: str, band_names: tuple[str, ...], inherited: dict) -> dict:
+    """design_band and forced_bands of one level (array, option, state), over the inherited ones."""
+    out = dict(inherited)
+    if "design_band" in t:
+        out["design_band"] = _band_ref(r, t["design_band"], _join(key, "design_band"), band_names)
+    if "forced_bands" in t:
+        v = t["forced_bands"]
+        k = _join(key, "forced_bands")
+        if isinstance(v, str):
+            v = [v]
+        if not isinstance(v, list):
+            raise r.fail(k, f"{_show(v)} is not a list of band names")
+        out["forced_bands"] = tuple(dict.fromkeys(_band_ref(r, b, f"{k}[{j + 1}]", band_names)
+                                                  for j, b in enumerate(v)))
+    return out
+
+
+def default_design_band(height_m: float, bands) -> "Band":
+    """The band on which the elements are nearest a quarter wave tall."""
+    return min(bands, key=lambda b: abs(height_m * b.freq_hz / 299_792_458.0 - 0.25))
+
+
+def _resolve_networks(r: _Reader, t: dict, array: ArraySpec, bands: tuple[Band, ...]) -> ArraySpec:
+    """Put design and forced bands (in Hz) on every forced state; check that
+    fed lines reach their elements from the junction."""
+    from dataclasses import replace
+
+    names = tuple(b.name for b in bands)
+    freq = {b.name: b.freq_hz for b in bands}
+    top = _network_keys(r, t, "array", names, {"design_band": default_design_band(array.height_m, bands).name,
+                                                "forced_bands": ()})
+    blocks = r.tables(t["option"], "array.option") if "option" in t else None
+    options = []
+    for oi, option in enumerate(array.options):
+        if blocks is not None:
+            ot, okey = blocks[oi], f"array.option[{oi + 1}]"
+        else:
+            ot, okey = {}, "array"
+        level = _network_keys(r, ot, okey, names, top)
+        raw_states = ot.get("state", t.get("state", [])) if blocks is not None else t.get("state", [])
+        raw_states = raw_states if isinstance(raw_states, list) else [raw_states]
+        skey = _join(okey if blocks is not None else "array", "state")
+        states = []
+        for si, state in enumerate(option.states):
+            st = raw_states[si] if si < len(raw_states) else {}
+            k = f"{skey}[{si + 1}]"
+            if state.is_fed:
+                for name in _NETWORK_KEYS:
+                    if name in st:
+                        raise r.fail(_join(k, name), "does not apply to a line_m state (its lines are the "
+                                     "network); give it to phase_deg states")
+                _check_reach(r, option, state, k)
+                states.append(state)
+                continue
+            if option.n_elements == 1:
+                states.append(state)
+                continue
+            own = _network_keys(r, st, k, names, level)
+            states.append(replace(state, design_band=own["design_band"],
+                                  design_freq_hz=freq[own["design_band"]],
+                                  forced_freqs_hz=tuple(freq[b] for b in own["forced_bands"])))
+        options.append(replace(option, states=tuple(states)))
+    return replace(array, options=tuple(options))
+
+
+def _check_reach(r: _Reader, option: ArrayOption, state: State, key: str) -> None:
+    jx, jy = option.junction_point_m
+    for i, ((x, y), length) in enumerate(zip(option.positions_m, state.line_m)):
+        run = math.hypot(x - jx, y - jy)
+        if length < run - 1e-9:
+            raise r.fail(f"{key}.line_m[{i + 1}]", f"{length:g} m cannot reach element {i + 1}, which stands "
+                         f"{run:.2f} m from the junction; expected at least {run:.2f} m (or move junction_m)")
+
+
+def _junction(r: _Reader, t: dict, key: str) -> tuple[float, float] | None:
+    if "junction_m" not in t:
+        return None
+    x, y = r.number_list(t, "junction_m", key, length=2, why="[along, across] in metres", lo=-1000.0, hi=1000.0,
+                         what="metres from element 1, -1000 to 1000")
+    return (x, y)
 
 
 def mesh_caveats(site: "Site") -> tuple[str, ...]:
@@ -479,20 +574,24 @@ def _array(r: _Reader, t: Any, feed_t: Any) -> tuple[ArraySpec, Orientation]:
             pos = _positions(r, ot, k, layout, sp, radius)
             states = _option_states(r, ot, k, len(pos), layout)
             name = r.string(ot, "name", k, default=_option_name(layout, sp, len(pos)))
-            options.append(ArrayOption(name, layout, sp, pos, states))
+            junction = _junction(r, ot, k) or _junction(r, t, key)
+            options.append(ArrayOption(name, layout, sp, pos, states, junction))
     else:
         layout = r.string(t, "layout", key, default="pair", choices=LAYOUTS)
         spacings: tuple[float | None, ...] = (None,) if layout in ("single", "custom") else _spacings(r, t, key)
         for sp in spacings:
             pos = _positions(r, t, key, layout, sp, radius)
             states = _option_states(r, t, key, len(pos), layout)
-            options.append(ArrayOption(_option_name(layout, sp, len(pos)), layout, sp, pos, states))
+            options.append(ArrayOption(_option_name(layout, sp, len(pos)), layout, sp, pos, states,
+                                       _junction(r, t, key)))
     names = [o.name for o in options]
     if len(set(names)) != len(names):
         raise r.fail("array.option", "two options share a name; option names must differ")
     feed = _feed(r, feed_t)
     orientation = _orientation(r, t)
-    return ArraySpec(height, radius, ground, loss, feed, tuple(options)), orientation
+    slack = r.number(t, "line_slack_m", key, default=1.0, lo=0.0, hi=100.0,
+                     what="a slack in metres, 0 to 100, added to every designed line's run")
+    return ArraySpec(height, radius, ground, loss, feed, tuple(options), slack), orientation
 
 
 def _option_states(r: _Reader, t: dict, key: str, n: int, layout: str) -> tuple[State, ...]:

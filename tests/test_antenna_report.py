@@ -111,7 +111,7 @@ def test_pattern_files(tmp_path):
 
 
 def test_feed_json():
-    site = _site(state="built", state_body="line_m = [5.0, 12.1]")
+    site = _site(state="built", state_body="line_m = [5.5, 12.1]")
     res = feed_verb.build(site, _args())
     json.loads(dumps_json(res))
     (b,) = res["bands"]
