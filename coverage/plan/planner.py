@@ -79,6 +79,8 @@ class GoalRow:
     open_fraction: float
     avoid_advantage_db: float | None
     reference_gain_dbi: float | None
+    kind: str = ""                  # how the state's currents are made on this band
+    design_band: str | None = None  # as-built: the band its network is designed on
 
 
 @dataclass(frozen=True, slots=True)
@@ -388,8 +390,10 @@ def goal_rows(plan_option: OptionPlan, goal_bands, theta_index: int, ref: dict) 
         if gb.avoid_needs is not None and gb.avoid_needs.weights.sum() > 0:
             aw = gb.avoid_needs.weights
             avoid_adv = float(np.sum(aw * g) / aw.sum()) - _ref_mean(aw, ref[gb.band_name])
+        res = plan_option.patterns[(gb.band_name, s_name)]
         rows.append(GoalRow(gb.goal_name, gb.path, gb.band_name, s_name, mean, p10, mean - ref_mean,
-                            float(plan_option.values_db[i, theta_index]), open_f, avoid_adv, ref_mean))
+                            float(plan_option.values_db[i, theta_index]), open_f, avoid_adv, ref_mean,
+                            getattr(res, "kind", "forced"), getattr(res, "design_band", None)))
     return tuple(rows)
 
 

@@ -34,7 +34,7 @@ import numpy as np
 from ..fileio import atomic_savefig
 from ..grid import AZIMUTH_DEG
 from ..safety import CAUTION_LINE
-from .scene import BandScene
+from .scene import BandScene, kind_label
 
 __all__ = ["projection", "save_png_palette", "PAPER_IN", "SPHERE_RADIUS_M", "RIM_KM", "draw_map", "map_figure", "outline_lines",
            "ADVANTAGE_RANGE_DB", "STATE_COLOURS"]
@@ -398,6 +398,13 @@ def _title_block(fig, scene: BandScene, date_text: str, w_in: float, h_in: float
              f"{scene.model}  ·  {date_text}", fontsize=8.3, color=INK, va="baseline")
 
 
+def _short_kind(lobe) -> str:
+    """Legend wording of how a state's currents are made (the long form is :func:`kind_label`)."""
+    if lobe.kind == "as-built":
+        return f"{lobe.design_band} network"
+    return kind_label(lobe.kind, lobe.design_band)
+
+
 def _legends(fig, scene: BandScene, cmap, norm, diam: float, map_bottom: float, w_in: float, h_in: float,
              Rectangle) -> None:
     from matplotlib.cm import ScalarMappable
@@ -443,7 +450,9 @@ def _legends(fig, scene: BandScene, cmap, norm, diam: float, map_bottom: float, 
     for i, lobe in enumerate(scene.lobes):
         col = STATE_COLOURS[i % len(STATE_COLOURS)]
         handles.append(Patch(facecolor=col, alpha=0.45, edgecolor=col,
-                             label=f"{lobe.state}: {lobe.peak_gain_dbi:.1f} dBi toward {lobe.peak_bearing_deg:.0f}°"))
+                             label=f"{lobe.state} ({_short_kind(lobe)}): "
+                                   f"{lobe.peak_gain_dbi:.1f} dBi toward "
+                                   + "/".join(f"{b:.0f}°" for b in (lobe.lobes_deg or (lobe.peak_bearing_deg,)))))
     handles.append(Line2D([], [], color=INK, linewidth=2.6, label=f"baseline, along {scene.orientation_deg:.0f}°"))
     if scene.avoid:
         handles.append(Patch(facecolor="none", edgecolor=AVOID, hatch="xxx", label="keep in the rear (avoid)"))

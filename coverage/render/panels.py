@@ -20,6 +20,7 @@ import numpy as np
 from ..fileio import atomic_savefig
 from ..grid import ELEVATION_DEG
 from .azimap import INK, STATE_COLOURS
+from ..antenna.pattern import lobe_bearings_deg
 from .scene import chosen_option, key_takeoff_deg, true_bearing_row
 
 __all__ = ["elevation_figure", "orientation_figure", "draw_elevation_panel", "draw_orientation_panel",
@@ -83,13 +84,16 @@ def elevation_figure(site, plan):
             g = op.patterns[(band, s_name)].gain_dbi
             el = int(round(takeoff)) if takeoff is not None else int(np.unravel_index(np.argmax(g), g.shape)[0])
             row = true_bearing_row(g, el, theta)
-            bearing = int(np.argmax(row))
+            every = lobe_bearings_deg(row)   # ties broken the same way on every machine
+            bearing = int(round(every[0][0])) % 360 if every else int(np.argmax(row))
             frame_az = (bearing - theta) % 360.0
+            res = op.patterns[(band, s_name)]
+            how = "" if getattr(res, "kind", "forced") != "as-built" else f", as built ({res.design_band} network)"
             cut = np.array([np.interp(frame_az, np.arange(360.0), g[e], period=360.0)
                             for e in range(ELEVATION_DEG.size)])
             peak = max(peak, float(cut.max()))
             ax.plot(ELEVATION_DEG, cut, color=STATE_COLOURS[i % len(STATE_COLOURS)], linewidth=1.6,
-                    label=f"{s_name} toward {bearing}°", gid=f"cut:{band}:{s_name}")
+                    label=f"{s_name} toward {bearing}°{how}", gid=f"cut:{band}:{s_name}")
         ax.set_ylim(peak - 25.0, peak + 3.0)
         ax.set_xlim(0.0, 90.0)
         if takeoff is not None:

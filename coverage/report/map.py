@@ -96,7 +96,9 @@ def build(site, args) -> dict:
             "takeoff_deg": _r(sc.takeoff_deg, 1),
             "takeoff_from": "needs" if sc.takeoff_from_needs else "pattern peak",
             "lobes": [{"state": lobe.state, "peak_gain_dbi": _r(lobe.peak_gain_dbi),
-                       "peak_bearing_deg": _r(lobe.peak_bearing_deg, 1)} for lobe in sc.lobes],
+                       "peak_bearing_deg": _r(lobe.peak_bearing_deg, 1), "kind": lobe.kind,
+                       "design_band": lobe.design_band, "lobes_deg": [_r(b, 1) for b in lobe.lobes_deg]}
+                      for lobe in sc.lobes],
             "goals": [{"goal": g.name, "region": g.region,
                        "paths": [{"path": p, "state": s or None, "advantage_db": _r(a), "open_fraction": _r(o, 3)}
                                  for p, s, a, o in g.rows]} for g in sc.goals],
@@ -124,9 +126,17 @@ def format_text(result: dict) -> str:
            f"{result['orientation_deg']:.1f}°", ""]
     out.append(f"  {'band':<8} {'takeoff':>7}  {'file':<24} lobes (peak dBi toward bearing)")
     for m in result["maps"]:
-        lobes = ", ".join(f"{lo['state']} {lo['peak_gain_dbi']:+.1f} @ {lo['peak_bearing_deg']:.0f}°"
+        lobes = ", ".join(f"{lo['state']}{'' if lo['kind'] != 'as-built' else ' (as built)'} "
+                          f"{lo['peak_gain_dbi']:+.1f} @ "
+                          + "/".join(f"{b:.0f}°" for b in (lo["lobes_deg"] or [lo["peak_bearing_deg"]]))
                           for lo in m["lobes"])
         out.append(f"  {m['band'][:8]:<8} {m['takeoff_deg']:>6.0f}°  {m['file']:<24} {lobes}")
+    built = sorted({lo["design_band"] for m in result["maps"] for lo in m["lobes"] if lo["kind"] == "as-built"})
+    if built:
+        out.append("")
+        out.append("  (as built): the currents the state's network, designed on " + ", ".join(built)
+                   + ", delivers on that band (coupling, line loss, fixed parts).")
+    out.append("  Bearings after @: every lobe within 1 dB of the state's peak at the takeoff angle, strongest first.")
     return "\n".join(out) + "\n"
 
 

@@ -50,7 +50,20 @@ def _goal_row(g) -> dict:
     return {"goal": g.goal, "path": g.path, "band": g.band, "state": g.state or None,
             "mean_gain_dbi": _r(g.mean_gain_dbi, 2), "p10_gain_dbi": _r(g.p10_gain_dbi, 2),
             "advantage_db": _r(g.advantage_db, 2), "value_db": _r(g.value_db, 2),
-            "open_fraction": _r(g.open_fraction, 3), "avoid_advantage_db": _r(g.avoid_advantage_db, 2)}
+            "open_fraction": _r(g.open_fraction, 3), "avoid_advantage_db": _r(g.avoid_advantage_db, 2),
+            "kind": g.kind or None, "design_band": g.design_band}
+
+
+def _state_kinds(plan) -> list[dict]:
+    """How every state's currents are made on every band (forced, as-built, fed)."""
+    out = []
+    for op in plan.options:
+        for s in op.state_names:
+            bands = {b: r for (b, name), r in op.patterns.items() if name == s}
+            design = next((r.design_band for r in bands.values() if r.design_band), None)
+            out.append({"option": op.option, "state": s, "design_band": design,
+                        "kind": {b: r.kind for b, r in bands.items()}})
+    return out
 
 
 def build_from_plan(site, plan) -> dict:
@@ -82,6 +95,7 @@ def build_from_plan(site, plan) -> dict:
         "ranking": ranking,
         "spacing_comparison": comparison,
         "orientation_scores": scores,
+        "states": _state_kinds(plan),
         "caveats": list(plan.caveats) + list(height_caveats(site)) + list(mesh_caveats(site)),
         "cautions": list(CAUTIONS),
     }
@@ -107,12 +121,15 @@ def format_text(result: dict) -> str:
     if result["ranking"]:
         best = result["ranking"][0]
         out += ["", f"Per goal, {best['option']} with the baseline along {best['orientation_deg']:.1f}°",
-                f"  {'goal':<22} {'path':<5} {'band':<7} {'state':<18} {'mean':>7} {'p10':>7} {'vs one':>7} {'open':>5}",
+                f"  {'goal':<22} {'path':<5} {'band':<7} {'state':<18} {'mean':>7} {'p10':>7} {'vs one':>7} {'open':>5}"
+                "  currents",
                 f"  {'':<22} {'':<5} {'':<7} {'':<18} {'dBi':>7} {'dBi':>7} {'dB':>7} {'':>5}"]
+        how = {"as-built": "as built", "forced": "forced", "fed": "own lines", None: ""}
         for g in best["goals"]:
             out.append(f"  {g['goal'][:22]:<22} {g['path']:<5} {g['band'][:7]:<7} {(g['state'] or 'closed')[:18]:<18}"
                        f" {_f(g['mean_gain_dbi'], '7.2f')} {_f(g['p10_gain_dbi'], '7.2f')}"
-                       f" {_f(g['advantage_db'], '+7.2f')} {g['open_fraction']:5.2f}")
+                       f" {_f(g['advantage_db'], '+7.2f')} {g['open_fraction']:5.2f}  {how.get(g.get('kind'), '')}")
+    out += _kinds_text(result.get("states", []))
     out += ["", "Spacing options side by side"]
     out.append(f"  {'option':<24} {'spacing':>8} {'best':>7} {'score':>7}  within 1 dB of its best")
     for c in result["spacing_comparison"]:
@@ -136,6 +153,29 @@ def format_text(result: dict) -> str:
     out += ["", "Cautions"]
     out += [f"  - {c}" for c in result["cautions"]]
     return "\n".join(out) + "\n"
+
+
+def _kinds_text(states: list[dict]) -> list[str]:
+    """One line per state: on which bands its currents are forced, as built or fed."""
+    if not states:
+        return []
+    out = ["", "How each state's currents are made (the scores above use these)"]
+    for s in states:
+        built = [b for b, k in s["kind"].items() if k == "as-built"]
+        forced = [b for b, k in s["kind"].items() if k == "forced"]
+        fed = [b for b, k in s["kind"].items() if k == "fed"]
+        parts = []
+        if built:
+            parts.append(f"as built from the {s['design_band']} network on " + ", ".join(built))
+        if forced:
+            parts.append("forced on " + ", ".join(forced))
+        if fed:
+            parts.append("its own lines (line_m) on " + ", ".join(fed))
+        out.append(f"  {s['option'][:24]}: {s['state']!r}: " + "; ".join(parts))
+    out.append("  as built: the currents the state's switch network, designed on that band, really delivers "
+               "(coupling, line loss, fixed parts); forced: the wanted currents held exactly (an ideal feed, "
+               "or forced_bands: a network of its own on that band).")
+    return out
 
 
 def _csv(result: dict) -> str:
