@@ -279,23 +279,38 @@ def design_line_lengths(z_base_ohm: np.ndarray, feed: Feed, freq_hz: float,
     vj = np.stack([_junction_voltage(feed, freq_hz, grids[e], v[e], w[e]) for e in range(n)])
     scale = float(np.max(np.abs(vj)))
 
+    gamma = line_gamma_per_m(feed, freq_hz)
+    z0 = feed.z0_ohm
+
     def residual(lengths):
-        out = []
-        ref = _junction_voltage(feed, freq_hz, lengths[0], v[0], w[0])
+        gl = gamma * np.asarray(lengths)
+        vjs = (np.cosh(gl) * v + z0 * np.sinh(gl) * w) / scale   # V_J = A V + B I of each line
+        diff = vjs[1:] - vjs[0]
+        return np.column_stack([diff.real, diff.imag]).ravel()
+
+    def jacobian(lengths):
+        # d V_J / d l = gamma (sinh(gl) V + Z0 cosh(gl) I) for each line
+        gl = gamma * np.asarray(lengths)
+        dv = gamma * (np.sinh(gl) * v + z0 * np.cosh(gl) * w) / scale
+        jac = np.zeros((2 * (n - 1), n))
         for e in range(1, n):
-            diff = (_junction_voltage(feed, freq_hz, lengths[e], v[e], w[e]) - ref) / scale
-            out.extend([diff.real, diff.imag])
-        return np.array(out)
+            jac[2 * e - 2, 0], jac[2 * e - 1, 0] = -dv[0].real, -dv[0].imag
+            jac[2 * e - 2, e], jac[2 * e - 1, e] = dv[e].real, dv[e].imag
+        return jac
 
     # seeds: the best grid pairs of element 1 against element 2
     gap = np.abs(vj[0][:, None] - vj[1][None, :])
-    order = np.argsort(gap, axis=None)[:400]
+    flat_gap = gap.ravel()
+    near = np.argpartition(flat_gap, 400)[:400]
+    order = near[np.argsort(flat_gap[near], kind="stable")]
     seeds = []
     picked: list[tuple[int, int]] = []
     for flat in order:
         i1, i2 = np.unravel_index(flat, gap.shape)
         # distinct basins only: neighbouring grid pairs lead to the same solution
-        if any(abs(int(i1) - a) < 12 and abs(int(i2) - b) < 12 for a, b in picked) or len(picked) >= 12:
+        if len(picked) >= 8:
+            break
+        if any(abs(int(i1) - a) < 12 and abs(int(i2) - b) < 12 for a, b in picked):
             continue
         picked.append((int(i1), int(i2)))
         start = [grids[0][i1], grids[1][i2]]
@@ -307,7 +322,8 @@ def design_line_lengths(z_base_ohm: np.ndarray, feed: Feed, freq_hz: float,
     found = []
     hi = lo + 2.0 * lam
     for start in seeds:
-        sol = least_squares(residual, np.array(start), bounds=(lo, hi), xtol=1e-12, ftol=1e-12)
+        sol = least_squares(residual, np.array(start), jac=jacobian, bounds=(lo, hi), xtol=1e-12, ftol=1e-12,
+                            max_nfev=60)
         found.append((float(np.max(np.abs(sol.fun))), float(np.sum(sol.x)), tuple(sol.x)))
     best_res = min(f[0] for f in found)
     good = [f for f in found if f[0] <= max(1e-7, 1.5 * best_res)]

@@ -226,17 +226,14 @@ def _solve(freq_hz: float, height_m: float, radius_m: float,
     inverse = inverse.reshape(n_el, n_el)
     rows = _toeplitz_rows(k, dz, rho, n_full)  # (n_rho, n_full)
 
-    m = np.arange(n_full)
-    offset = np.abs(m[:, None] - m[None, :])
-    z_full = rows[inverse[:, :, None, None], offset[None, None, :, :]]  # (e, e', m, n)
-    z_full = z_full.transpose(0, 2, 1, 3).reshape(n_el * n_full, n_el * n_full)
-
-    # symmetric currents: full coefficient at index m equals c_|m - centre|
-    centre = n_node - 1
-    sym = np.zeros((n_full, n_node))
-    sym[m, np.abs(m - centre)] = 1.0
-    s_mat = np.kron(np.eye(n_el), sym)
-    z_red = s_mat.T @ z_full @ s_mat  # (n_el N, n_el N)
+    # symmetric currents (c at +-i equal): the reduced Galerkin matrix is
+    # s_i s_j [T(|i - j|) + T(i + j)], s_0 = 1/sqrt 2, s_i = sqrt 2 (a Toeplitz
+    # plus a Hankel part), assembled directly instead of from the full matrix
+    i = np.arange(n_node)
+    scale = np.where(i == 0, math.sqrt(0.5), math.sqrt(2.0))
+    blocks = (rows[:, np.abs(i[:, None] - i[None, :])] + rows[:, i[:, None] + i[None, :]]) \
+        * (scale[:, None] * scale[None, :])                                  # (n_rho, N, N)
+    z_red = blocks[inverse].transpose(0, 2, 1, 3).reshape(n_el * n_node, n_el * n_node)
 
     ports = np.zeros((n_el * n_node, n_el))
     ports[np.arange(n_el) * n_node, np.arange(n_el)] = 1.0

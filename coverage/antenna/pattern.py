@@ -50,6 +50,7 @@ __all__ = [
     "state_kind",
     "state_network",
     "KINDS",
+    "gain_toward_dbi",
 ]
 
 GAIN_FLOOR_DBI = -60.0
@@ -238,6 +239,29 @@ def gain_from_currents_dbi(sol: CoupledElements, ground: Ground, base_current_a:
     gain = ETA0_OHM * k * k * (field.real ** 2 + field.imag ** 2) / (8.0 * math.pi * input_power_w)
     floor = 10.0 ** (GAIN_FLOOR_DBI / 10.0)
     return 10.0 * np.log10(np.maximum(gain, floor))
+
+
+def gain_toward_dbi(sol: CoupledElements, ground: Ground, base_current_a: np.ndarray, input_power_w: float,
+                    elevation_index: int, azimuth_deg) -> np.ndarray:
+    """Gain at one elevation row toward a few azimuths (array frame), dBi.
+
+    The same far field as :func:`gain_from_currents_dbi`, evaluated only where
+    asked (for tolerance searches that need the front and the back only).
+
+    Returns
+    -------
+    ndarray, shape (n_az,), floored at -60 dBi.
+    """
+    k = 2.0 * math.pi * sol.freq_hz / C0_M_S
+    nodes = sol.currents_on_wires(base_current_a)
+    kern = _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size, ground)[elevation_index]
+    vert = nodes @ kern                                                   # (n_el,)
+    az = np.radians(np.atleast_1d(np.asarray(azimuth_deg, dtype=float)))
+    pos = sol.positions_m
+    proj = pos[:, 0, None] * np.cos(az)[None, :] + pos[:, 1, None] * np.sin(az)[None, :]
+    field = (vert[:, None] * np.exp(1j * k * _COS_EL[elevation_index] * proj)).sum(axis=0)
+    gain = ETA0_OHM * k * k * np.abs(field) ** 2 / (8.0 * math.pi * input_power_w)
+    return 10.0 * np.log10(np.maximum(gain, 10.0 ** (GAIN_FLOOR_DBI / 10.0)))
 
 
 def array_pattern(spec: ArraySpec, option: ArrayOption, state: State, freq_hz: float) -> ArrayResult:

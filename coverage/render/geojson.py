@@ -9,7 +9,8 @@ GIS opens:
   ``lobe_peak_km`` at the band's peak gain, falling linearly in dB to the
   station at ``lobe_floor_db`` below it. ``lobes_deg`` lists every lobe
   within 1 dB of the state's peak (strongest first); the state's ``kind``
-  is "forced", "as-built" (from its ``design_band`` network) or "fed".
+  (``state_kind``) is "forced", "as-built" (from its ``design_band``
+  network) or "fed".
 - ``kind = "goal"``: the goal region with, for every band and path, the
   state that serves it and its advantage over one vertical.
 - ``kind = "avoid"``: the regions to keep in the rear.
@@ -179,7 +180,7 @@ def plan_geojson(site, plan) -> dict:
                 "kind": "lobe", "band": scene.band, "option": scene.option, "state": lobe.state,
                 "orientation_deg": _r(scene.orientation_deg, 1), "takeoff_deg": _r(scene.takeoff_deg, 1),
                 "peak_gain_dbi": _r(lobe.peak_gain_dbi, 2), "peak_bearing_deg": _r(lobe.peak_bearing_deg, 1),
-                "kind": lobe.kind, "design_band": lobe.design_band,
+                "state_kind": lobe.kind, "design_band": lobe.design_band,
                 "lobes_deg": [_r(b, 1) for b in lobe.lobes_deg],
                 "scale_peak_km": _r(scene.lobe_peak_km, 1), "scale_floor_db": _r(scene.lobe_floor_db, 1),
                 "scale_top_dbi": _r(scene.lobe_top_dbi, 2)}))

@@ -5,18 +5,42 @@ import math
 
 import numpy as np
 
-from ..antenna.feed import (design_l_network, design_line_lengths, drive_fed, l_network_input_ohm,
+from ..antenna.feed import (design_l_network, drive_fed, l_network_input_ohm,
                             quarter_wave_forcing, swr)
-from ..antenna.pattern import coupled_elements, state_currents, state_drive
+from ..antenna.pattern import (array_pattern, base_impedance_ohm, coupled_elements, lobe_bearings_deg,
+                               state_currents, state_drive)
+from ..errors import UsageError
 from .pattern import current_rows, pair, select_bands
 
-__all__ = ["add_arguments", "build", "format_text"]
+__all__ = ["add_arguments", "check_arguments", "build", "format_text", "power_w", "network_dict"]
 
 _EDGE_FRACTION = 0.015
 
 
+DEFAULT_POWER_W = 100.0
+
+
 def add_arguments(parser) -> None:
     parser.add_argument("--band", metavar="B", default=None, help="only this band (its name in the site file)")
+    parser.add_argument("--power-w", metavar="W", default=None,
+                        help=f"transmitter power for the part stress (default {DEFAULT_POWER_W:g} W)")
+
+
+def power_w(args) -> float:
+    text = getattr(args, "power_w", None)
+    if text is None:
+        return DEFAULT_POWER_W
+    try:
+        value = float(str(text))
+    except ValueError:
+        raise UsageError(f"--power-w: {text!r} is not a number; expected watts, more than 0 and up to 100000") from None
+    if not (0.0 < value <= 1e5):
+        raise UsageError(f"--power-w: {text} is out of range; expected watts, more than 0 and up to 100000")
+    return value
+
+
+def check_arguments(args) -> None:
+    power_w(args)
 
 
 def _edges(band):
@@ -32,9 +56,7 @@ def _part(c) -> dict:
 
 
 def _junction(spec, option, line_m, freq_hz):
-    sol = coupled_elements(spec, option, freq_hz)
-    z = sol.impedance_ohm + spec.ground_loss_ohm * np.eye(sol.n_elements)
-    return drive_fed(z, spec.feed, freq_hz, line_m).junction_impedance_ohm
+    return drive_fed(base_impedance_ohm(spec, option, freq_hz), spec.feed, freq_hz, line_m).junction_impedance_ohm
 
 
 def _match(spec, option, line_m, band) -> dict:
@@ -50,44 +72,94 @@ def _match(spec, option, line_m, band) -> dict:
             "swr": rows}
 
 
-def _state_row(spec, option, state, band) -> dict:
+def _stress_rows(stress) -> list[dict]:
+    return [{"name": p.name, **_part(p.part), "voltage_v_peak": round(p.voltage_v_peak, 1),
+             "current_a_rms": round(p.current_a_rms, 2)} for p in stress]
+
+
+def network_dict(net) -> dict:
+    """A designed network as strict JSON (lines, parts, error; no stress)."""
+    parts = []
+    for b in net.branches:
+        for where, c in (("series", b.series), ("shunt", b.shunt)):
+            if c is not None:
+                parts.append({"name": f"element {b.element + 1} {where}", **_part(c)})
+    if net.match is not None:
+        parts.append({"name": "match series", **_part(net.match.series)})
+        parts.append({"name": "match shunt", **_part(net.match.shunt),
+                      "at": "junction" if net.match.shunt_at_load else "transmitter"})
+    return {"form": net.form, "line_m": [round(x, 3) for x in net.line_m], "parts": parts,
+            "current_error": round(net.current_error, 4), "meets": net.meets,
+            "junction_m": [round(x, 3) for x in net.junction_m], "runs_m": [round(x, 3) for x in net.runs_m],
+            "slack_m": net.slack_m}
+
+
+def _network_row(spec, option, state, band, power) -> dict:
+    from ..antenna.asbuilt import check_network
+
+    chk = check_network(spec, option, state, _edges(band), power)
+    out = network_dict(chk.network)
+    out["tolerance_cm"] = None if chk.tolerance_cm is None else round(chk.tolerance_cm, 1)
+    out["tolerance_vf_pct"] = None if chk.tolerance_vf_pct is None else round(chk.tolerance_vf_pct, 2)
+    out["stress"] = _stress_rows(chk.stress)
+    out["power_w"] = power
+    out["checks"] = [{"freq_mhz": round(c.freq_hz / 1e6, 4), "element_currents": current_rows(c.base_current_a),
+                      "forward_gain_dbi": round(c.forward_gain_dbi, 2), "front_to_back_db": round(c.front_to_back_db, 2),
+                      "swr": None if c.swr is None else round(c.swr, 3)} for c in chk.checks]
+    return out
+
+
+def _state_row(spec, option, state, band, power=DEFAULT_POWER_W) -> dict:
+    res = array_pattern(spec, option, state, band.freq_hz)
     d = state_drive(spec, option, state, band.freq_hz)
+    el = int(np.unravel_index(int(np.argmax(res.gain_dbi)), res.gain_dbi.shape)[0])
     row = {
         "state": state.name,
-        "kind": "fed" if state.is_fed else "forced",
+        "kind": res.kind,
+        "design_band": res.design_band,
         "element_currents": current_rows(d.base_current_a),
         "current_a_per_w": [round(float(abs(i)), 4) for i in d.base_current_a],
         "feedpoint_impedance_ohm": [pair(z) for z in d.feed_impedance_ohm],
         "element_power_w": [round(float(p), 4) for p in d.element_power_w],
         "junction_impedance_ohm": None if d.junction_impedance_ohm is None else pair(d.junction_impedance_ohm),
         "line_loss_w": round(d.line_loss_w, 4),
+        # array frame (azimuth from the baseline), at the state's peak elevation
+        "lobes_deg": [round(b, 1) for b, _ in lobe_bearings_deg(res.gain_dbi[el])],
         "match": None,
+        "network": None,
     }
     if state.is_fed:
         row["match"] = _match(spec, option, state.line_m, band)
+    elif res.kind == "as-built":
+        row["network"] = _network_row(spec, option, state, band, power)
     return row
 
 
 def _design(spec, option, band) -> dict:
-    sol = coupled_elements(spec, option, band.freq_hz)
-    n = sol.n_elements
-    z = sol.impedance_ohm + spec.ground_loss_ohm * np.eye(n)
+    """What a network designed on this band would be, for every forced state
+    (the network a switch box needs for each of its forced_bands)."""
+    from ..antenna.network import design_network
+
+    n = option.n_elements
+    z = base_impedance_ohm(spec, option, band.freq_hz)
     pos = np.asarray(option.positions_m)
-    # lines start at a junction at the centroid, so each must at least reach its element
-    min_len = float(np.max(np.hypot(*(pos - pos.mean(axis=0)).T))) if n > 1 else 0.0
+    runs = np.hypot(*(pos - np.asarray(option.junction_point_m)).T)
+    min_len = float(np.max(runs)) + spec.line_slack_m if n > 1 else 0.0
     wanted = [(s.name, state_currents(s, n)) for s in option.states if not s.is_fed]
-    if not wanted and n == 2:
+    if not wanted and n == 2:   # a pair with only fed states: show the usual quadrature wish
         wanted = [("equal, -90 deg", np.array([1.0, np.exp(-0.5j * math.pi)]))]
     lines = []
     for name, w in wanted:
         entry = {"state": name, "wanted_currents": current_rows(w), "line_m": None, "current_error": None,
-                 "match": None}
+                 "match": None, "network": None}
         if n >= 2:
-            d = design_line_lengths(z, spec.feed, band.freq_hz, w, min_length_m=min_len)
-            if d is not None:
-                entry["line_m"] = [round(x, 3) for x in d.line_m]
-                entry["current_error"] = round(d.error, 5)
-                entry["match"] = _match(spec, option, d.line_m, band)
+            net = design_network(z, spec.feed, band.freq_hz, w, option.positions_m, option.junction_point_m,
+                                 spec.line_slack_m)
+            entry["network"] = network_dict(net)
+            entry["line_m"] = [round(x, 3) for x in net.line_m]
+            entry["current_error"] = round(net.current_error, 5)
+            if net.form == "junction-lines":
+                entry["match"] = _match(spec, option, net.line_m, band)
         q = quarter_wave_forcing(spec.feed, band.freq_hz, w)
         entry["quarter_wave_forcing"] = {
             "quarter_wave_m": round(q.quarter_wave_m, 3),
@@ -101,6 +173,7 @@ def _design(spec, option, band) -> dict:
 
 def build(site, args=None) -> dict:
     spec = site.array
+    power = power_w(args)
     out = []
     for band in select_bands(site, getattr(args, "band", None)):
         for option in spec.options:
@@ -112,7 +185,7 @@ def build(site, args=None) -> dict:
                 "spacing_m": None if option.layout in ("single", "custom") else option.spacing_m,
                 "ground_loss_ohm": spec.ground_loss_ohm,
                 "impedance_matrix_ohm": [[pair(z) for z in row] for row in sol.impedance_ohm],
-                "states": [_state_row(spec, option, s, band) for s in option.states],
+                "states": [_state_row(spec, option, s, band, power) for s in option.states],
                 "design": _design(spec, option, band),
             })
     return {"bands": out}
@@ -130,6 +203,56 @@ def _parts(m) -> str:
             f"SWR {swrs} MHz")
 
 
+def _one(c) -> str:
+    return f"{c['uh']:.3f} uH" if c["part"] == "L" else f"{c['pf']:.0f} pF"
+
+
+def _network_text(n) -> list[str]:
+    lines = ", ".join(f"{x:.2f}" for x in n["line_m"])
+    runs = ", ".join(f"{x:.2f}" for x in n["runs_m"])
+    out = [f"    network ({n['form']}): lines {lines} m of the cable from the junction at "
+           f"({n['junction_m'][0]:.2f}, {n['junction_m'][1]:.2f}) m (runs {runs} m + {n['slack_m']:g} m slack); "
+           f"current error {n['current_error']:.3f}"]
+    if not n["meets"]:
+        out.append(f"    ! no recognised form meets the wanted currents (best current error {n['current_error']:.2f}, "
+                   "more than 0.1): this state will not give its forced pattern; see the checks below")
+    if "stress" in n:
+        for p in n["stress"]:
+            out.append(f"      {p['name']}: {_one(p)}, {p['voltage_v_peak']:.0f} V peak, {p['current_a_rms']:.2f} A rms "
+                       f"at {n['power_w']:g} W")
+    else:
+        for p in n["parts"]:
+            out.append(f"      {p['name']}: {_one(p)}")
+    tol = n.get("tolerance_cm")
+    vf = n.get("tolerance_vf_pct")
+    if "tolerance_cm" in n:
+        out.append("      cut tolerance: " + ("no front-to-back to lose" if tol is None and vf is None else
+                   f"{'over 250' if tol is None else f'{tol:.1f}'} cm on any one line, or "
+                   f"{'over 25' if vf is None else f'{vf:.2f}'} % of velocity factor, costs 3 dB of front-to-back"))
+    for c in n.get("checks", []):
+        cur = ", ".join(f"{e['amplitude']:.2f}/{e['phase_deg']:+.0f}" for e in c["element_currents"])
+        sw = "-" if c["swr"] is None else f"{c['swr']:.2f}"
+        out.append(f"      at {c['freq_mhz']:g} MHz: currents {cur}; forward {c['forward_gain_dbi']:+.2f} dBi, "
+                   f"F/B {c['front_to_back_db']:.1f} dB, SWR {sw}")
+    return out
+
+
+FOOTNOTES = (
+    "currents: amplitude/phase (deg) relative to element 1. kind: forced = the wanted currents held (an ideal "
+    "feed, or a network of its own on this band: forced_bands); as built = what the state's network, designed "
+    "on its design band, delivers here (coupling, line loss, fixed parts); fed = its own line_m lines.",
+    "current error: the largest difference between delivered and wanted currents as a fraction of the largest "
+    "wanted current, after the one common scale and phase that fits them best; a form meets the currents at "
+    "0.1 or less.",
+    "forward: gain toward the forced pattern's peak (design band), per watt into the junction; F/B: against the "
+    "opposite bearing at the same elevation; SWR: 50 ohm, through the junction's match (parts fixed at their "
+    "design-band values). Cut tolerance: the smallest error of one line's length, or of the cable's velocity "
+    "factor, that costs 3 dB of front-to-back on the design band.",
+    "part stress: peak voltage across and RMS current through each part at the given power (--power-w). "
+    "Lobes: every beam within 1 dB of the peak, azimuth from the baseline (array frame).",
+)
+
+
 def format_text(result: dict) -> str:
     lines = []
     for b in result["bands"]:
@@ -143,18 +266,23 @@ def format_text(result: dict) -> str:
             cur = ", ".join(f"{c['amplitude']:.2f}/{c['phase_deg']:+.0f}" for c in s["element_currents"])
             zs = ", ".join(_z(p) for p in s["feedpoint_impedance_ohm"])
             pw = ", ".join(f"{p:.3f}" for p in s["element_power_w"])
-            lines.append(f"  state {s['state']!r} ({s['kind']}): currents {cur}; feed points {zs} ohm; "
-                         f"power {pw} W per W")
-            if s["junction_impedance_ohm"] is not None:
+            kind = {"as-built": f"as built from the {s['design_band']} network", "fed": "fed"}.get(s["kind"], "forced")
+            lobes = "/".join(f"{x:.0f}" for x in s["lobes_deg"]) or "none (omnidirectional)"
+            lines.append(f"  state {s['state']!r} ({kind}): currents {cur}; feed points {zs} ohm; "
+                         f"power {pw} W per W; lobes {lobes} deg")
+            if s["junction_impedance_ohm"] is not None and s["match"] is not None:
                 lines.append(f"    junction {_z(s['junction_impedance_ohm'])} ohm, line loss "
                              f"{s['line_loss_w']:.3f} W per W; match: {_parts(s['match'])}")
+            if s.get("network") is not None:
+                lines.extend(_network_text(s["network"]))
         for d in b["design"]["lines"]:
-            if d["line_m"] is not None:
-                lines.append(f"  lines for {d['state']!r}: " + ", ".join(f"{x:.2f}" for x in d["line_m"])
-                             + f" m (current error {d['current_error']:.1e}); match: {_parts(d['match'])}")
+            if d.get("network") is not None:
+                lines.append(f"  a network designed on {b['band']} for {d['state']!r} (for a forced_bands switch box):")
+                lines.extend(_network_text(d["network"]))
             q = d["quarter_wave_forcing"]
             extra = ("" if q["common_junction_line_m"] is None else
                      "; from one junction: " + ", ".join(f"{x:.2f}" for x in q["common_junction_line_m"]) + " m")
             lines.append(f"    current forcing: lambda/4 of this cable is {q['quarter_wave_m']:.2f} m{extra}")
         lines.append("")
-    return "\n".join(lines)
+    lines += [f"  {t}" for t in FOOTNOTES]
+    return "\n".join(lines) + "\n"
