@@ -8,9 +8,8 @@ GIS opens:
   geodesic distance (the map itself draws it on a 6371 km sphere):
   ``lobe_peak_km`` at the band's peak gain, falling linearly in dB to the
   station at ``lobe_floor_db`` below it. ``lobes_deg`` lists every lobe
-  within 1 dB of the state's peak (strongest first); the state's ``kind``
-  (``state_kind``) is "forced", "as-built" (from its ``design_band``
-  network) or "fed".
+  within 1 dB of the state's peak (strongest first); ``state_kind`` is
+  "forced", "as-built" (from its ``design_band`` network) or "fed".
 - ``kind = "goal"``: the goal region with, for every band and path, the
   state that serves it and its advantage over one vertical.
 - ``kind = "avoid"``: the regions to keep in the rear.
