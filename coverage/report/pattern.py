@@ -6,7 +6,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ..antenna.pattern import GAIN_FLOOR_DBI, array_pattern, pattern_figures
+from ..antenna.pattern import GAIN_FLOOR_DBI, array_pattern, lobe_bearings_deg, pattern_figures
 from ..errors import UsageError
 from ..grid import AZIMUTH_DEG, ELEVATION_DEG, to_true_bearing
 
@@ -89,6 +89,11 @@ def build(site, args=None) -> dict:
                 "front_to_rear_db": _r(fig["front_to_rear_db"]),
                 "beamwidth_deg": _r(fig["beamwidth_deg"], 1),
                 "element_currents": current_rows(res.base_current_a),
+                "kind": res.kind,
+                "design_band": res.design_band,
+                # every lobe within 1 dB at the peak elevation, true bearings, strongest first
+                "lobes_deg": [round(b, 1) for b, _ in
+                              lobe_bearings_deg(true_gain[int(round(fig["peak_elevation_deg"]))])],
                 "feedpoint_impedance_ohm": [pair(z) for z in res.feed_impedance_ohm],
                 "azimuth_deg": [float(a) for a in AZIMUTH_DEG],
                 "elevation_deg": [float(e) for e in ELEVATION_DEG],
