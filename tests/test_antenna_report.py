@@ -56,7 +56,9 @@ def _args(**kw):
 # the keys issue 3 names, plus the option name (two options may share a spacing)
 KEYS = {"band", "option", "state", "spacing_m", "orientation_deg", "peak_gain_dbi", "peak_azimuth_deg",
         "peak_elevation_deg", "front_to_back_db", "front_to_rear_db", "beamwidth_deg", "element_currents",
-        "feedpoint_impedance_ohm", "azimuth_deg", "elevation_deg", "gain_dbi"}
+        "feedpoint_impedance_ohm", "azimuth_deg", "elevation_deg", "gain_dbi",
+        # issue 10: how the currents are made on this band, and every lobe
+        "kind", "design_band", "lobes_deg"}
 
 
 def test_pattern_json_shape_and_rotation():

@@ -317,23 +317,56 @@ def design_line_lengths(z_base_ohm: np.ndarray, feed: Feed, freq_hz: float,
         for e in range(2, n):  # remaining lines: nearest junction voltage on their grid
             start.append(grids[e][int(np.argmin(np.abs(vj[e] - vj[0][i1])))])
         seeds.append(start)
-    from scipy.optimize import least_squares  # imported here only: it costs 0.6 s
-
     found = []
     hi = lo + 2.0 * lam
     for start in seeds:
-        sol = least_squares(residual, np.array(start), jac=jacobian, bounds=(lo, hi), xtol=1e-12, ftol=1e-12,
-                            max_nfev=60)
-        found.append((float(np.max(np.abs(sol.fun))), float(np.sum(sol.x)), tuple(sol.x)))
+        x, fun = _bounded_lm(residual, jacobian, np.array(start), lo, hi)
+        found.append((float(np.max(np.abs(fun))), float(np.sum(x)), tuple(x)))
     best_res = min(f[0] for f in found)
     good = [f for f in found if f[0] <= max(1e-7, 1.5 * best_res)]
-    good.sort(key=lambda f: f[1])
+    good.sort(key=lambda f: (round(f[1], 6), tuple(round(x, 6) for x in f[2])))  # ties: the same on every machine
     lengths = good[0][2]
     check = drive_fed(z_base_ohm, feed, freq_hz, lengths).base_current_a
     achieved = check / check[0]
     return LineDesign(line_m=tuple(float(x) for x in lengths),
                       achieved=tuple(complex(x) for x in achieved),
                       error=float(np.max(np.abs(achieved - w))))
+
+
+def _bounded_lm(residual, jacobian, x0, lo, hi, iterations: int = 60):
+    """Levenberg-Marquardt with the steps clipped into [lo, hi] (few unknowns).
+
+    References
+    ----------
+    D. W. Marquardt, "An algorithm for least-squares estimation of nonlinear
+    parameters", J. SIAM 11 (1963) 431-441.
+    """
+    x = np.clip(x0, lo, hi)
+    r = residual(x)
+    cost = float(r @ r)
+    damp = 1e-3
+    for _ in range(iterations):
+        jac = jacobian(x)
+        h = jac.T @ jac
+        g = jac.T @ r
+        try:
+            step = np.linalg.solve(h + damp * np.diag(np.diag(h) + 1e-12), -g)
+        except np.linalg.LinAlgError:
+            break
+        x_new = np.clip(x + step, lo, hi)
+        r_new = residual(x_new)
+        c_new = float(r_new @ r_new)
+        if c_new < cost:
+            moved = float(np.max(np.abs(x_new - x)))
+            x, r, cost = x_new, r_new, c_new
+            damp = max(damp / 3.0, 1e-12)
+            if moved < 1e-12 or cost < 1e-26:
+                break
+        else:
+            damp *= 4.0
+            if damp > 1e10:
+                break
+    return x, r
 
 
 @dataclass(frozen=True, slots=True)
