@@ -21,7 +21,8 @@ from .geo.station import Station
 from .plan.model import Orientation
 from .propagation.model import PropagationSettings
 
-__all__ = ["Band", "Goal", "Site", "load", "loads", "MapSettings", "height_caveats", "mesh_caveats"]
+__all__ = ["Band", "Goal", "Site", "load", "loads", "MapSettings", "height_caveats", "mesh_caveats",
+           "element_caveats", "SHORT_WAVELENGTHS"]
 
 _REQUIRED = object()
 LAYOUTS = ("single", "pair", "line", "square", "custom")
@@ -394,6 +395,33 @@ def _junction(r: _Reader, t: dict, key: str) -> tuple[float, float] | None:
     x, y = r.number_list(t, "junction_m", key, length=2, why="[along, across] in metres", lo=-1000.0, hi=1000.0,
                          what="metres from element 1, -1000 to 1000")
     return (x, y)
+
+
+SHORT_WAVELENGTHS = 0.15   # under this an element is "short": a base coil is the usual remedy
+
+
+def element_caveats(site: "Site") -> tuple[str, ...]:
+    """Short elements: the base-loading coil that resonates one, and its loss at a stated Q."""
+    from .antenna.feed import COIL_Q, loading_coil
+    from .antenna.mom import solve_elements
+
+    out = []
+    a = site.array
+    for b in site.bands:
+        h = a.height_m * b.freq_hz / 299_792_458.0
+        if h >= SHORT_WAVELENGTHS:
+            continue
+        z = complex(solve_elements(a.height_m, a.radius_m, ((0.0, 0.0),), b.freq_hz).impedance_ohm[0, 0])
+        coil = loading_coil(z, a.ground_loss_ohm, b.freq_hz)
+        text = (f"On {b.name} the elements are {h:.2f} wavelength tall (short): each base is about "
+                f"{z.real:.1f}{z.imag:+.0f}j ohm")
+        if coil is not None:
+            text += (f"; a base coil of {coil.inductance_uh:.1f} uH resonates it, and at a coil Q of {COIL_Q:g} "
+                     f"it adds {coil.loss_ohm:.1f} ohm, so with the {a.ground_loss_ohm:g} ohm ground loss only "
+                     f"{100 * coil.efficiency:.0f} % of the power is radiated (before ground losses in the far "
+                     "field). A match straight to the bare base would need extreme parts.")
+        out.append(text)
+    return tuple(out)
 
 
 def mesh_caveats(site: "Site") -> tuple[str, ...]:

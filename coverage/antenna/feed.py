@@ -50,6 +50,9 @@ __all__ = [
     "design_l_network",
     "l_network_input_ohm",
     "swr",
+    "LoadingCoil",
+    "loading_coil",
+    "COIL_Q",
 ]
 
 _C0_M_S = 299_792_458.0
@@ -510,3 +513,54 @@ def swr(z_ohm, r0_ohm: float = 50.0):
     g = np.abs((np.asarray(z_ohm, dtype=complex) - r0_ohm) / (np.asarray(z_ohm, dtype=complex) + r0_ohm))
     g = np.minimum(g, 1.0 - 1e-12)
     return (1.0 + g) / (1.0 - g)
+
+
+COIL_Q = 200.0
+"""Unloaded Q assumed for a base-loading coil (an air-wound HF coil: 150-300 is
+common practice)."""
+
+
+@dataclass(frozen=True, slots=True)
+class LoadingCoil:
+    """A series base coil that resonates a short element.
+
+    Attributes
+    ----------
+    inductance_uh : float
+    loss_ohm : float
+        Its series loss resistance X / Q.
+    q : float
+    resistance_ohm : float
+        The resonated base resistance (element + base loss + coil loss).
+    efficiency : float
+        Share of the power that the element's own resistance takes (its
+        radiation, over a perfect plane), 0..1.
+    """
+
+    inductance_uh: float
+    loss_ohm: float
+    q: float
+    resistance_ohm: float
+    efficiency: float
+
+
+def loading_coil(z_element_ohm: complex, base_loss_ohm: float, freq_hz: float, q: float = COIL_Q
+                 ) -> LoadingCoil | None:
+    """The base coil that cancels a capacitive element reactance, with its loss at ``q``.
+
+    None when the element is not capacitive (no coil resonates it).
+
+    References
+    ----------
+    Base loading of short verticals: X_L = -X_element, R_coil = X_L / Q
+    (common practice; e.g. the loading sections of the ARRL Antenna Book,
+    from memory).
+    """
+    x = float(np.imag(z_element_ohm))
+    if x >= 0:
+        return None
+    xl = -x
+    r_coil = xl / q
+    r_el = float(np.real(z_element_ohm))
+    total = r_el + base_loss_ohm + r_coil
+    return LoadingCoil(xl / (2 * math.pi * freq_hz) * 1e6, r_coil, q, total, r_el / total if total > 0 else 0.0)

@@ -207,22 +207,27 @@ def make_plan(site, goal_bands: tuple[GoalBand, ...] | None = None,
 
     prepared = prepare_needs(goal_bands, ref)  # shared by every option
 
-    method = "direct" if fixed else "fft"
     option_plans = []
     for option in spec.options:
         patterns = {(band_name, s.name): array_pattern(spec, option, s, f)
                     for band_name, f in bands.items() for s in option.states}
-        values, best_state = score_option(option, patterns, goal_bands, prepared, thetas, orient.step_deg,
+        o_thetas, o_allowed, method = thetas, allowed, ("direct" if fixed else "fft")
+        if option.n_elements == 1:
+            # one vertical has no baseline: a single bearing, whatever the lot allows
+            o_thetas, o_allowed, method = np.array([0.0]), np.array([True]), "direct"
+        values, best_state = score_option(option, patterns, goal_bands, prepared, o_thetas, orient.step_deg,
                                           method)
         weights = np.array([gb.weight * pre["open"] for gb, pre in zip(goal_bands, prepared)])
         open_rows = np.isfinite(values[:, 0]) & (weights > 0)
         if open_rows.any():
             score = (weights[open_rows, None] * values[open_rows]).sum(axis=0) / weights[open_rows].sum()
         else:
-            score = np.full(thetas.size, np.nan)
-        best_theta, best_score, window = _best(thetas, score, allowed)
-        option_plans.append(OptionPlan(option.name, option.layout, option.spacing_m, thetas, score,
-                                       allowed, best_theta, best_score, window, values, best_state,
+            score = np.full(o_thetas.size, np.nan)
+        best_theta, best_score, window = _best(o_thetas, score, o_allowed)
+        if option.n_elements == 1:
+            window = None
+        option_plans.append(OptionPlan(option.name, option.layout, option.spacing_m, o_thetas, score,
+                                       o_allowed, best_theta, best_score, window, values, best_state,
                                        tuple(s.name for s in option.states), patterns))
     ranking = _ranking(site, goal_bands, option_plans, ref)
     return Plan(tuple(goal_bands), tuple(option_plans), ranking, ref, caveats)

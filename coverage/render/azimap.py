@@ -297,12 +297,14 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
         k += 1
 
     # the array baseline: a great circle through the station, bold near it
+    # (one vertical has none)
     th = scene.orientation_deg
-    x, y = _xy([th + 180.0, th], [RIM_KM, RIM_KM])
-    ax.plot([x[0], 0, x[1]], [y[0], 0, y[1]], color=INK, linewidth=0.6, linestyle=(0, (6, 3)), zorder=3.5)
-    bx, by = _xy([th + 180.0, th], [1100.0, 1100.0])
-    ax.plot(bx, by, color=INK, linewidth=2.6, solid_capstyle="butt", zorder=5, gid="baseline")
-    ax.plot([bx[1]], [by[1]], marker=(3, 0, -th), markersize=7, color=INK, zorder=5)
+    if scene.layout != "single":
+        x, y = _xy([th + 180.0, th], [RIM_KM, RIM_KM])
+        ax.plot([x[0], 0, x[1]], [y[0], 0, y[1]], color=INK, linewidth=0.6, linestyle=(0, (6, 3)), zorder=3.5)
+        bx, by = _xy([th + 180.0, th], [1100.0, 1100.0])
+        ax.plot(bx, by, color=INK, linewidth=2.6, solid_capstyle="butt", zorder=5, gid="baseline")
+        ax.plot([bx[1]], [by[1]], marker=(3, 0, -th), markersize=7, color=INK, zorder=5)
 
     # lobes
     for i, lobe in enumerate(scene.lobes):
@@ -390,8 +392,9 @@ def _title_block(fig, scene: BandScene, date_text: str, w_in: float, h_in: float
     score = "" if scene.score_db is None else f"; score {scene.score_db:+.2f} dB over one vertical"
     # a default option name already says layout and spacing ("pair 10.5 m")
     what = scene.option if scene.option.startswith(scene.layout) else f"{scene.option} ({scene.layout}{spacing})"
+    where = "one vertical, no baseline" if scene.layout == "single" else f"baseline along {scene.orientation_deg:.1f}°"
     fig.text(x0, at(0.86), f"{scene.locator}  ·  {lat} {lon}  ·  {what}  ·  "
-             f"baseline along {scene.orientation_deg:.1f}°{score}", fontsize=8.3, color=INK, va="baseline")
+             f"{where}{score}", fontsize=8.3, color=INK, va="baseline")
     how = ("median takeoff angle the goals need on this band" if scene.takeoff_from_needs
            else "no goal opens on this band: elevation of the first state's peak")
     fig.text(x0, at(1.08), f"Lobes at {scene.takeoff_deg:.0f}° takeoff ({how})  ·  propagation model: "
@@ -449,11 +452,13 @@ def _legends(fig, scene: BandScene, cmap, norm, diam: float, map_bottom: float, 
     handles = []
     for i, lobe in enumerate(scene.lobes):
         col = STATE_COLOURS[i % len(STATE_COLOURS)]
+        how = "one element" if scene.layout == "single" else _short_kind(lobe)
+        toward = ("all round" if not lobe.lobes_deg
+                  else "toward " + "/".join(f"{b:.0f}°" for b in lobe.lobes_deg))
         handles.append(Patch(facecolor=col, alpha=0.45, edgecolor=col,
-                             label=f"{lobe.state} ({_short_kind(lobe)}): "
-                                   f"{lobe.peak_gain_dbi:.1f} dBi toward "
-                                   + "/".join(f"{b:.0f}°" for b in (lobe.lobes_deg or (lobe.peak_bearing_deg,)))))
-    handles.append(Line2D([], [], color=INK, linewidth=2.6, label=f"baseline, along {scene.orientation_deg:.0f}°"))
+                             label=f"{lobe.state} ({how}): {lobe.peak_gain_dbi:.1f} dBi {toward}"))
+    if scene.layout != "single":
+        handles.append(Line2D([], [], color=INK, linewidth=2.6, label=f"baseline, along {scene.orientation_deg:.0f}°"))
     if scene.avoid:
         handles.append(Patch(facecolor="none", edgecolor=AVOID, hatch="xxx", label="keep in the rear (avoid)"))
     if any(g.advantage_db is None for g in scene.goals):

@@ -177,7 +177,8 @@ def plan_geojson(site, plan) -> dict:
                 continue
             features.append(_feature({"type": "MultiPolygon", "coordinates": _coords(geom)}, {
                 "kind": "lobe", "band": scene.band, "option": scene.option, "state": lobe.state,
-                "orientation_deg": _r(scene.orientation_deg, 1), "takeoff_deg": _r(scene.takeoff_deg, 1),
+                "orientation_deg": None if scene.layout == "single" else _r(scene.orientation_deg, 1),
+                "takeoff_deg": _r(scene.takeoff_deg, 1),
                 "peak_gain_dbi": _r(lobe.peak_gain_dbi, 2), "peak_bearing_deg": _r(lobe.peak_bearing_deg, 1),
                 "state_kind": lobe.kind, "design_band": lobe.design_band,
                 "lobes_deg": [_r(b, 1) for b in lobe.lobes_deg],
@@ -201,7 +202,8 @@ def plan_geojson(site, plan) -> dict:
     st = site.station
     props = {"kind": "station", "name": st.name, "locator": st.locator}
     if first is not None:
-        props.update({"option": first.option, "orientation_deg": _r(first.orientation_deg, 1),
+        props.update({"option": first.option,
+                      "orientation_deg": None if first.layout == "single" else _r(first.orientation_deg, 1),
                       "score_db": _r(first.score_db, 2)})
     features.append(_feature({"type": "Point", "coordinates": [round(float(st.lon_deg), _DIGITS),
                                                                round(float(st.lat_deg), _DIGITS)]}, props))

@@ -130,7 +130,7 @@ def orientation_figure(site, plan):
     ax = fig.add_axes([0.11, 0.15, 0.78, 0.70], projection="polar")
     ax.set_theta_zero_location("N")
     ax.set_theta_direction(-1)
-    finite = [op.score_db[np.isfinite(op.score_db)] for op in plan.options]
+    finite = [op.score_db[np.isfinite(op.score_db)] for op in plan.options if op.layout != "single"]
     values = np.concatenate(finite) if finite else np.array([0.0])
     if values.size == 0:
         values = np.array([0.0])
@@ -144,6 +144,8 @@ def orientation_figure(site, plan):
         ax.fill_between(t, lo, hi, color=ALLOWED, alpha=0.7, linewidth=0, zorder=0, gid=f"allowed:{i}",
                         label="the lot allows" if i == 0 else None)
     for i, op in enumerate(plan.options):
+        if op.layout == "single":   # one vertical has no bearing to sweep
+            continue
         col = OPTION_COLOURS[i % len(OPTION_COLOURS)]
         sp = "" if op.spacing_m is None else f", {op.spacing_m:.2f} m"
         if op.best_orientation_deg is not None:

@@ -109,6 +109,39 @@ def _network_row(spec, option, state, band, power) -> dict:
     return out
 
 
+def _base_match(spec, option, band) -> dict:
+    """One vertical: L-network at its base to 50 ohm (band centre) and the SWR at the edges."""
+    def z_at(f):
+        return complex(base_impedance_ohm(spec, option, f)[0, 0])
+
+    z0 = z_at(band.freq_hz)
+    net = design_l_network(z0, band.freq_hz, 50.0)
+    rows = [{"freq_mhz": round(f / 1e6, 4), "swr": round(float(min(swr(l_network_input_ohm(net, f, z_at(f))), 1e6)), 3)}
+            for f in _edges(band)]
+    return {"junction_impedance_ohm": pair(z0), "series": _part(net.series), "shunt": _part(net.shunt),
+            "shunt_at": "junction" if net.shunt_at_load else "transmitter", "q": round(net.q, 3), "swr": rows,
+            "swr_unmatched": [{"freq_mhz": round(f / 1e6, 4), "swr": round(float(min(swr(z_at(f)), 1e6)), 3)}
+                              for f in _edges(band)]}
+
+
+def _loading(spec, band):
+    from ..antenna.feed import COIL_Q, loading_coil
+    from ..site import SHORT_WAVELENGTHS
+
+    h = spec.height_m * band.freq_hz / 299_792_458.0
+    if h >= SHORT_WAVELENGTHS:
+        return None
+    from ..antenna.mom import solve_elements
+
+    z = complex(solve_elements(spec.height_m, spec.radius_m, ((0.0, 0.0),), band.freq_hz).impedance_ohm[0, 0])
+    coil = loading_coil(z, spec.ground_loss_ohm, band.freq_hz)
+    if coil is None:
+        return None
+    return {"height_wavelengths": round(h, 3), "inductance_uh": round(coil.inductance_uh, 3),
+            "coil_q": COIL_Q, "coil_loss_ohm": round(coil.loss_ohm, 3),
+            "resonated_resistance_ohm": round(coil.resistance_ohm, 3), "efficiency": round(coil.efficiency, 3)}
+
+
 def _state_row(spec, option, state, band, power=DEFAULT_POWER_W) -> dict:
     res = array_pattern(spec, option, state, band.freq_hz)
     d = state_drive(spec, option, state, band.freq_hz)
@@ -130,6 +163,8 @@ def _state_row(spec, option, state, band, power=DEFAULT_POWER_W) -> dict:
     }
     if state.is_fed:
         row["match"] = _match(spec, option, state.line_m, band)
+    elif option.n_elements == 1:
+        row["match"] = _base_match(spec, option, band)
     elif res.kind == "as-built":
         row["network"] = _network_row(spec, option, state, band, power)
     return row
@@ -141,6 +176,8 @@ def _design(spec, option, band) -> dict:
     from ..antenna.network import design_network
 
     n = option.n_elements
+    if n < 2:   # one vertical: no network, its match is in its state row
+        return {"min_line_m": 0.0, "lines": []}
     z = base_impedance_ohm(spec, option, band.freq_hz)
     pos = np.asarray(option.positions_m)
     runs = np.hypot(*(pos - np.asarray(option.junction_point_m)).T)
@@ -186,6 +223,7 @@ def build(site, args=None) -> dict:
                 "ground_loss_ohm": spec.ground_loss_ohm,
                 "impedance_matrix_ohm": [[pair(z) for z in row] for row in sol.impedance_ohm],
                 "states": [_state_row(spec, option, s, band, power) for s in option.states],
+                "loading_coil": _loading(spec, band),
                 "design": _design(spec, option, band),
             })
     return {"bands": out}
@@ -267,14 +305,26 @@ def format_text(result: dict) -> str:
             zs = ", ".join(_z(p) for p in s["feedpoint_impedance_ohm"])
             pw = ", ".join(f"{p:.3f}" for p in s["element_power_w"])
             kind = {"as-built": f"as built from the {s['design_band']} network", "fed": "fed"}.get(s["kind"], "forced")
-            lobes = "/".join(f"{x:.0f}" for x in s["lobes_deg"]) or "none (omnidirectional)"
+            lobes = ("lobes " + "/".join(f"{x:.0f}" for x in s["lobes_deg"]) + " deg") if s["lobes_deg"] \
+                else "all round"
             lines.append(f"  state {s['state']!r} ({kind}): currents {cur}; feed points {zs} ohm; "
-                         f"power {pw} W per W; lobes {lobes} deg")
+                         f"power {pw} W per W; {lobes}")
             if s["junction_impedance_ohm"] is not None and s["match"] is not None:
                 lines.append(f"    junction {_z(s['junction_impedance_ohm'])} ohm, line loss "
                              f"{s['line_loss_w']:.3f} W per W; match: {_parts(s['match'])}")
+            elif s["match"] is not None:   # one vertical: matched at its base
+                m = s["match"]
+                bare = ", ".join(f"{r['swr']:.2f} at {r['freq_mhz']:g}" for r in m["swr_unmatched"])
+                lines.append(f"    base {_z(m['junction_impedance_ohm'])} ohm (SWR on 50 ohm without a match: {bare} MHz); "
+                             f"match at the base: {_parts(m)}")
             if s.get("network") is not None:
                 lines.extend(_network_text(s["network"]))
+        if b.get("loading_coil"):
+            c = b["loading_coil"]
+            lines.append(f"  short elements ({c['height_wavelengths']:.2f} wavelength): a base coil of "
+                         f"{c['inductance_uh']:.2f} uH resonates one; at Q {c['coil_q']:g} it adds {c['coil_loss_ohm']:.1f} "
+                         f"ohm, leaving {c['resonated_resistance_ohm']:.1f} ohm to match and {100 * c['efficiency']:.0f} % "
+                         "radiated (the element's share of the base resistance)")
         for d in b["design"]["lines"]:
             if d.get("network") is not None:
                 lines.append(f"  a network designed on {b['band']} for {d['state']!r} (for a forced_bands switch box):")

@@ -110,7 +110,7 @@ def build(site, args) -> dict:
         "station": {"name": st.name, "locator": st.locator, "lat_deg": _r(st.lat_deg, 6),
                     "lon_deg": _r(st.lon_deg, 6)},
         "option": first.option if first else None,
-        "orientation_deg": _r(first.orientation_deg, 1) if first else None,
+        "orientation_deg": _r(first.orientation_deg, 1) if first and first.layout != "single" else None,
         "score_db": _r(first.score_db) if first else None,
         "format": fmt,
         "paper": getattr(args, "paper", "a4") or "a4",
@@ -122,13 +122,14 @@ def build(site, args) -> dict:
 
 def format_text(result: dict) -> str:
     st = result["station"]
-    out = [f"Maps for {st['name']} ({st['locator']}): {result['option']}, baseline along "
-           f"{result['orientation_deg']:.1f}°", ""]
+    where = ("one vertical, no baseline" if result["orientation_deg"] is None
+             else f"baseline along {result['orientation_deg']:.1f}°")
+    out = [f"Maps for {st['name']} ({st['locator']}): {result['option']}, {where}", ""]
     out.append(f"  {'band':<8} {'takeoff':>7}  {'file':<24} lobes (peak dBi toward bearing)")
     for m in result["maps"]:
         lobes = ", ".join(f"{lo['state']}{'' if lo['kind'] != 'as-built' else ' (as built)'} "
                           f"{lo['peak_gain_dbi']:+.1f} @ "
-                          + "/".join(f"{b:.0f}°" for b in (lo["lobes_deg"] or [lo["peak_bearing_deg"]]))
+                          + ("/".join(f"{b:.0f}°" for b in lo["lobes_deg"]) or "all round")
                           for lo in m["lobes"])
         out.append(f"  {m['band'][:8]:<8} {m['takeoff_deg']:>6.0f}°  {m['file']:<24} {lobes}")
     built = sorted({lo["design_band"] for m in result["maps"] for lo in m["lobes"] if lo["kind"] == "as-built"})
@@ -168,6 +169,7 @@ def write_plan_figures(site, plan, args, out_dir) -> list[Path]:
     written = [draw_map(band_scene(site, plan, b.name), out / map_file_name(b.name), date_text, "a4", DEFAULT_DPI)
                for b in site.bands]
     written.append(draw_elevation_panel(site, plan, out / "elevation.png"))
-    written.append(draw_orientation_panel(site, plan, out / "orientation.png"))
+    if any(op.layout != "single" for op in plan.options):   # one vertical: no bearing to sweep
+        written.append(draw_orientation_panel(site, plan, out / "orientation.png"))
     written.append(write_geojson(site, plan, out / "plan.geojson"))
     return written

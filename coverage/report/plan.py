@@ -7,8 +7,10 @@ import io
 import math
 from pathlib import Path
 
+import numpy as np
+
 from ..safety import CAUTIONS
-from ..site import height_caveats, mesh_caveats
+from ..site import element_caveats, height_caveats, mesh_caveats
 
 __all__ = ["add_arguments", "check_arguments", "build", "build_from_plan", "format_text", "write_files", "run_plan"]
 
@@ -30,7 +32,7 @@ def _r(x, nd: int = 3):
     x = float(x)
     if not math.isfinite(x):
         return None
-    return round(x, nd)
+    return round(x, nd) + 0.0   # no "-0.0"
 
 
 @functools.lru_cache(maxsize=2)
@@ -69,17 +71,22 @@ def _state_kinds(plan) -> list[dict]:
 def build_from_plan(site, plan) -> dict:
     from ..plan.planner import goal_rows
 
-    ranking = [{"option": e.option, "orientation_deg": _r(e.orientation_deg, 1), "spacing_m": _r(e.spacing_m, 3),
+    def bearing(layout, theta):   # one vertical has no baseline
+        return None if layout == "single" else _r(theta, 1)
+
+    ranking = [{"option": e.option, "orientation_deg": bearing(e.layout, e.orientation_deg),
+                "spacing_m": _r(e.spacing_m, 3),
                 "layout": e.layout, "score_db": _r(e.score_db, 2),
                 "goals": [_goal_row(g) for g in e.goals]} for e in plan.ranking]
     comparison = []
     for op in plan.options:
         entry = {"option": op.option, "spacing_m": _r(op.spacing_m, 3), "layout": op.layout,
-                 "best_orientation_deg": _r(op.best_orientation_deg, 1), "score_db": _r(op.best_score_db, 2),
+                 "best_orientation_deg": bearing(op.layout, op.best_orientation_deg),
+                 "score_db": _r(op.best_score_db, 2),
                  "within_1db_deg": [_r(op.window_deg[0], 1), _r(op.window_deg[1], 1)] if op.window_deg else None,
                  "goals": []}
         if op.best_orientation_deg is not None:
-            idx = int(list(op.orientation_deg).index(op.best_orientation_deg))
+            idx = int(np.argmin(np.abs(op.orientation_deg - op.best_orientation_deg)))
             entry["goals"] = [_goal_row(g) for g in goal_rows(op, plan.goal_bands, idx, plan.reference_gain_dbi)]
         comparison.append(entry)
     scores = [{"option": op.option, "spacing_m": _r(op.spacing_m, 3),
@@ -96,7 +103,8 @@ def build_from_plan(site, plan) -> dict:
         "spacing_comparison": comparison,
         "orientation_scores": scores,
         "states": _state_kinds(plan),
-        "caveats": list(plan.caveats) + list(height_caveats(site)) + list(mesh_caveats(site)),
+        "caveats": list(plan.caveats) + list(height_caveats(site)) + list(mesh_caveats(site))
+        + list(element_caveats(site)),
         "cautions": list(CAUTIONS),
     }
 
@@ -112,15 +120,20 @@ def _f(x, spec: str = "+6.2f", none: str = "—") -> str:
 def format_text(result: dict) -> str:
     st = result["station"]
     out = [f"Plan for {st['name']} ({st['locator']}), propagation model: {result['model']}", ""]
-    out.append("Best baseline bearings (score: mean advantage over one vertical, dB)")
+    out.append("Best baseline bearings (score: mean advantage over one vertical, dB)"
+               if any(e["orientation_deg"] is not None for e in result["ranking"])
+               else "Score: mean advantage over one vertical, dB (one vertical has no baseline to turn)")
     out.append(f"  {'#':>2}  {'option':<24} {'bearing':>8} {'score':>7}")
     for i, e in enumerate(result["ranking"], 1):
-        out.append(f"  {i:>2}  {e['option'][:24]:<24} {e['orientation_deg']:>7.1f}° {_f(e['score_db'], '+7.2f')}")
+        where = "no baseline" if e["orientation_deg"] is None else f"{e['orientation_deg']:>7.1f}°"
+        out.append(f"  {i:>2}  {e['option'][:24]:<24} {where:>8} {_f(e['score_db'], '+7.2f')}")
     if not result["ranking"]:
         out.append("  (no allowed bearing serves an open goal)")
     if result["ranking"]:
         best = result["ranking"][0]
-        out += ["", f"Per goal, {best['option']} with the baseline along {best['orientation_deg']:.1f}°",
+        along = ("one vertical (no baseline)" if best["orientation_deg"] is None
+                 else f"with the baseline along {best['orientation_deg']:.1f}°")
+        out += ["", f"Per goal, {best['option']} {along}",
                 f"  {'goal':<22} {'path':<5} {'band':<7} {'state':<18} {'mean':>7} {'p10':>7} {'vs one':>7} {'open':>5}"
                 "  currents",
                 f"  {'':<22} {'':<5} {'':<7} {'':<18} {'dBi':>7} {'dBi':>7} {'dB':>7} {'':>5}"]
@@ -157,10 +170,12 @@ def format_text(result: dict) -> str:
 
 def _kinds_text(states: list[dict]) -> list[str]:
     """One line per state: on which bands its currents are forced, as built or fed."""
-    if not states:
+    if not states or all(s["state"] == "single" for s in states):
         return []
     out = ["", "How each state's currents are made (the scores above use these)"]
     for s in states:
+        if s["state"] == "single" and list(s["kind"].values()) == ["forced"] * len(s["kind"]):
+            continue    # one vertical: fed at its base, no network
         built = [b for b, k in s["kind"].items() if k == "as-built"]
         forced = [b for b, k in s["kind"].items() if k == "forced"]
         fed = [b for b, k in s["kind"].items() if k == "fed"]

@@ -1,0 +1,170 @@
+"""The array as built through the verbs: design bands, labels, one vertical, short elements."""
+import json
+import math
+
+import numpy as np
+import pytest
+
+from lobeplan.antenna.feed import loading_coil
+from lobeplan.fileio import dumps_json
+from lobeplan.site import element_caveats, loads
+
+PAIR = """
+[station]
+name = "Test lot"
+lat = 45.0
+lon = -93.0
+[array]
+height_m = 10.3
+layout = "pair"
+spacing_m = 10.5
+{extra}
+[[array.state]]
+name = "fwd"
+phase_deg = [0, -90]
+{state_extra}
+[[array.state]]
+name = "rev"
+phase_deg = [-90, 0]
+[[band]]
+name = "40 m"
+freq_mhz = 7.1
+[[band]]
+name = "20 m"
+freq_mhz = 14.1
+[[goal]]
+region = "continent:Europe"
+[propagation]
+points_per_goal = 40
+"""
+
+SINGLE = """
+[station]
+name = "Test lot"
+lat = 45.0
+lon = -93.0
+[array]
+height_m = 10.3
+layout = "single"
+allowed_orientation_deg = [[20, 80]]
+[[band]]
+name = "40 m"
+freq_mhz = 7.1
+[[band]]
+name = "80 m"
+freq_mhz = 3.6
+[[goal]]
+region = "continent:Europe"
+[propagation]
+points_per_goal = 40
+"""
+
+
+class _Args:
+    json = True
+    band = None
+    state = None
+    power_w = None
+    date = "2026-12-01"
+
+
+def test_default_design_band_is_the_one_nearest_a_quarter_wave():
+    # 10.3 m is 0.244 wavelength at 7.1 MHz and 0.48 at 14.1 MHz
+    site = loads(PAIR.format(extra="", state_extra=""), file="t.toml")
+    for s in site.array.options[0].states:
+        assert s.design_band == "40 m" and s.design_freq_hz == pytest.approx(7.1e6)
+        assert s.forced_freqs_hz == ()
+
+
+def test_state_keys_override_option_and_array():
+    site = loads(PAIR.format(extra='design_band = "20 m"', state_extra='design_band = "40 m"\n'
+                             'forced_bands = ["20 m"]'), file="t.toml")
+    fwd, rev = site.array.options[0].states
+    assert fwd.design_band == "40 m" and fwd.forced_freqs_hz == (14.1e6,)
+    assert rev.design_band == "20 m" and rev.forced_freqs_hz == ()
+
+
+def test_pattern_and_feed_json_label_every_state_on_every_band():
+    from lobeplan.report import feed as feed_verb
+    from lobeplan.report import pattern as pattern_verb
+
+    site = loads(PAIR.format(extra="", state_extra='forced_bands = ["20 m"]'), file="t.toml")
+    pat = json.loads(dumps_json(pattern_verb.build(site, _Args())))
+    kinds = {(p["band"], p["state"]): (p["kind"], p["design_band"]) for p in pat["patterns"]}
+    assert kinds[("40 m", "fwd")] == ("as-built", "40 m")
+    assert kinds[("20 m", "fwd")] == ("forced", None)
+    assert kinds[("20 m", "rev")] == ("as-built", "40 m")
+    for p in pat["patterns"]:
+        assert p["lobes_deg"] and all(0.0 <= b < 360.0 for b in p["lobes_deg"])
+    feed = json.loads(dumps_json(feed_verb.build(site, _Args())))
+    for b in feed["bands"]:
+        for s in b["states"]:
+            assert s["kind"] in ("forced", "as-built", "fed") and "lobes_deg" in s
+            if s["kind"] == "as-built":
+                net = s["network"]
+                assert {"form", "line_m", "parts", "current_error", "tolerance_cm"} <= set(net)
+                assert net["form"] in ("junction-lines", "current-forcing")
+                assert [c["freq_mhz"] for c in net["checks"]][1] == b["freq_mhz"]
+    # 20 m as built from the 40 m network is not the forced 0/-90 (issue 10)
+    row = next(s for b in feed["bands"] if b["band"] == "20 m" for s in b["states"] if s["state"] == "rev")
+    assert abs(row["element_currents"][1]["phase_deg"] - 90.0) > 10.0 or \
+        abs(row["element_currents"][1]["amplitude"] - 1.0) > 0.1
+
+
+def test_plan_says_which_bands_rest_on_forced_currents():
+    from lobeplan.report import plan as plan_verb
+
+    site = loads(PAIR.format(extra="", state_extra='forced_bands = ["20 m"]'), file="t.toml")
+    res = plan_verb.build(site, _Args())
+    fwd = next(s for s in res["states"] if s["state"] == "fwd")
+    assert fwd["kind"] == {"40 m": "as-built", "20 m": "forced"} and fwd["design_band"] == "40 m"
+    text = plan_verb.format_text(res)
+    assert "as built from the 40 m network" in text and "forced on 20 m" in text
+    for g in res["ranking"][0]["goals"]:
+        assert g["kind"] in ("as-built", "forced", None)
+
+
+def test_single_vertical_has_no_baseline_no_sweep(tmp_path):
+    from lobeplan.report import plan as plan_verb
+
+    site = loads(SINGLE, file="t.toml")
+    res = plan_verb.build(site, _Args())
+    (entry,) = res["ranking"]
+    assert entry["orientation_deg"] is None and entry["score_db"] == pytest.approx(0.0, abs=1e-6)
+    (comp,) = res["spacing_comparison"]
+    assert comp["within_1db_deg"] is None and comp["best_orientation_deg"] is None
+    assert "within 1 dB" not in plan_verb.format_text(res).split("Spacing options")[0]
+    files = [p.name for p in plan_verb.write_files(site, _Args(), res, tmp_path)]
+    assert "orientation.png" not in files
+    from lobeplan.render.azimap import map_figure
+    from lobeplan.render.scene import band_scene
+    import matplotlib.pyplot as plt
+
+    fig = map_figure(band_scene(site, plan_verb.run_plan(site, True), "40 m"), "2026-12-01", "a4")
+    gids = [a.get_gid() for ax in fig.axes for a in ax.lines]
+    plt.close(fig)
+    assert "baseline" not in gids
+
+
+def test_single_vertical_feed_gives_impedance_match_and_swr():
+    from lobeplan.report import feed as feed_verb
+
+    site = loads(SINGLE, file="t.toml")
+    res = json.loads(dumps_json(feed_verb.build(site, _Args())))
+    b40 = next(b for b in res["bands"] if b["band"] == "40 m")
+    (s,) = b40["states"]
+    assert s["match"]["swr"][1]["swr"] == pytest.approx(1.0, abs=1e-3)   # matched at the centre
+    assert s["match"]["swr"][0]["swr"] > 1.0 and b40["design"]["lines"] == []
+
+
+def test_short_element_base_coil():
+    # A coil that resonates a capacitive base: omega L = -X, loss X/Q in
+    # series (common practice); the radiated share is R / (R + R_ground + R_coil).
+    z = complex(6.2, -307.6)
+    c = loading_coil(z, 2.0, 3.6e6, q=200.0)
+    assert 2 * math.pi * 3.6e6 * c.inductance_uh * 1e-6 == pytest.approx(307.6, rel=1e-9)
+    assert c.loss_ohm == pytest.approx(307.6 / 200.0)
+    assert c.efficiency == pytest.approx(6.2 / (6.2 + 2.0 + 307.6 / 200.0))
+    assert loading_coil(complex(40, 10), 2.0, 7e6) is None     # inductive: no base coil resonates it
+    notes = element_caveats(loads(SINGLE, file="t.toml"))
+    assert len(notes) == 1 and "80 m" in notes[0] and "uH" in notes[0]
