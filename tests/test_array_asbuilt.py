@@ -168,3 +168,46 @@ def test_short_element_base_coil():
     assert loading_coil(complex(40, 10), 2.0, 7e6) is None     # inductive: no base coil resonates it
     notes = element_caveats(loads(SINGLE, file="t.toml"))
     assert len(notes) == 1 and "80 m" in notes[0] and "uH" in notes[0]
+
+
+def test_stakes_round_trip_through_pyproj_to_a_millimetre():
+    # Independent check with pyproj: an azimuthal-equidistant projection
+    # centred on element 1 maps each stake's latitude/longitude back to
+    # east/north metres; over a few tens of metres it is exact to far under a
+    # millimetre, so the rotation and the geodesic must agree to 1 mm.
+    from pyproj import Geod, Proj
+
+    from lobeplan.antenna.layout import layout_positions_m
+    from lobeplan.plan.stakes import staking_plan
+
+    for lat0, lon0, theta in ((45.0, -93.0, 60.0), (-33.9, 151.2, 305.0), (69.5, 179.999, 137.3)):
+        pos = layout_positions_m("square", 10.5)
+        sp = staking_plan("sq", pos, (5.25, 5.25), theta, lon0, lat0)
+        proj = Proj(proj="aeqd", lat_0=lat0, lon_0=lon0, ellps="WGS84")
+        for s in sp.elements + (sp.junction,):
+            x, y = proj(s.lon_deg, s.lat_deg)
+            assert x == pytest.approx(s.east_m, abs=1e-3) and y == pytest.approx(s.north_m, abs=1e-3)
+        # element 2 lies along the baseline, one spacing from element 1
+        az, _, dist = Geod(ellps="WGS84").inv(lon0, lat0, sp.elements[1].lon_deg, sp.elements[1].lat_deg)
+        assert dist == pytest.approx(10.5, abs=1e-3) and (az - theta + 180) % 360 - 180 == pytest.approx(0, abs=1e-5)
+        # element 4 lies 90 deg clockwise of the baseline (the across axis)
+        az, _, _ = Geod(ellps="WGS84").inv(lon0, lat0, sp.elements[3].lon_deg, sp.elements[3].lat_deg)
+        assert (az - theta - 90 + 180) % 360 - 180 == pytest.approx(0, abs=1e-5)
+
+
+def test_plan_out_writes_stakes_and_layout(tmp_path):
+    import csv
+
+    from lobeplan.report import plan as plan_verb
+
+    site = loads(PAIR.format(extra="", state_extra=""), file="t.toml")
+    res = plan_verb.build(site, _Args())
+    (st,) = res["stakes"]
+    assert st["orientation_deg"] == res["ranking"][0]["orientation_deg"]
+    assert {"element", "along_m", "across_m", "north_m", "east_m", "lat_deg", "lon_deg"} <= set(st["elements"][0])
+    assert len(st["runs"]) == 2 and all(r["line_m"]["fwd"] >= r["run_m"] for r in st["runs"])
+    names = {p.name for p in plan_verb.write_files(site, _Args(), res, tmp_path)}
+    assert {"stakes.csv", "layout.png"} <= names
+    rows = list(csv.DictReader((tmp_path / "stakes.csv").open()))
+    assert [r["element"] for r in rows] == ["1", "2", "junction"]
+    assert {"element", "along_m", "across_m", "north_m", "east_m", "lat_deg", "lon_deg"} <= set(rows[0])

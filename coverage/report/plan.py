@@ -103,10 +103,58 @@ def build_from_plan(site, plan) -> dict:
         "spacing_comparison": comparison,
         "orientation_scores": scores,
         "states": _state_kinds(plan),
+        "stakes": stakes_json(site, plan),
         "caveats": list(plan.caveats) + list(height_caveats(site)) + list(mesh_caveats(site))
         + list(element_caveats(site)),
         "cautions": list(CAUTIONS),
     }
+
+
+def _chosen_bearing(site, plan, op) -> float:
+    """The best-ranked bearing of an option (its own best when it is not ranked)."""
+    for e in plan.ranking:
+        if e.option == op.option:
+            return float(e.orientation_deg)
+    if op.best_orientation_deg is not None:
+        return float(op.best_orientation_deg)
+    return float(site.orientation.fixed_deg or 0.0)
+
+
+def staking_plans(site, plan) -> list:
+    """A staking plan per option at its best-ranked bearing (lines: each state's)."""
+    from ..antenna.pattern import state_network
+    from ..plan.stakes import staking_plan
+
+    out = []
+    for option, op in zip(site.array.options, plan.options):
+        lines = {}
+        for s in option.states:
+            if s.is_fed:
+                lines[s.name] = s.line_m
+            elif s.design_freq_hz is not None and option.n_elements > 1:
+                lines[s.name] = state_network(site.array, option, s).line_m
+        out.append(staking_plan(option.name, option.positions_m, option.junction_point_m,
+                                _chosen_bearing(site, plan, op), site.station.lon_deg, site.station.lat_deg,
+                                lines))
+    return out
+
+
+def _stake_dict(s) -> dict:
+    return {"element": s.name, "along_m": _r(s.along_m, 3), "across_m": _r(s.across_m, 3),
+            "north_m": _r(s.north_m, 3), "east_m": _r(s.east_m, 3), "lat_deg": _r(s.lat_deg, 7),
+            "lon_deg": _r(s.lon_deg, 7)}
+
+
+def stakes_json(site, plan) -> list[dict]:
+    out = []
+    for sp in staking_plans(site, plan):
+        junction = _stake_dict(sp.junction)
+        junction.pop("element")
+        out.append({"option": sp.option, "orientation_deg": _r(sp.orientation_deg, 1),
+                    "elements": [_stake_dict(s) for s in sp.elements], "junction": junction,
+                    "runs": [{"element": r.element, "run_m": _r(r.run_m, 3), "bearing_deg": _r(r.bearing_deg, 1),
+                              "line_m": {k: _r(v, 3) for k, v in r.line_m.items()}} for r in sp.runs]})
+    return out
 
 
 def build(site, args=None) -> dict:
@@ -143,6 +191,7 @@ def format_text(result: dict) -> str:
                        f" {_f(g['mean_gain_dbi'], '7.2f')} {_f(g['p10_gain_dbi'], '7.2f')}"
                        f" {_f(g['advantage_db'], '+7.2f')} {g['open_fraction']:5.2f}  {how.get(g.get('kind'), '')}")
     out += _kinds_text(result.get("states", []))
+    out += _stakes_text(result.get("stakes", []), result["ranking"][0]["option"] if result["ranking"] else None)
     out += ["", "Spacing options side by side"]
     out.append(f"  {'option':<24} {'spacing':>8} {'best':>7} {'score':>7}  within 1 dB of its best")
     for c in result["spacing_comparison"]:
@@ -193,6 +242,60 @@ def _kinds_text(states: list[dict]) -> list[str]:
     return out
 
 
+def _stakes_text(stakes: list[dict], option: str | None) -> list[str]:
+    """Where to drive the stakes for the best-ranked option (all options: stakes.csv)."""
+    sp = next((s for s in stakes if s["option"] == option), None)
+    if sp is None or len(sp["elements"]) < 2:
+        return []
+    out = ["", f"Staking plan: {sp['option']} with the baseline along {sp['orientation_deg']:.1f}° "
+           "(metres from element 1; element 1 at the station's position)",
+           f"  {'stake':<9} {'along':>7} {'across':>7} {'north':>8} {'east':>8} {'latitude':>12} {'longitude':>13}"]
+    j = dict(sp["junction"], element="junction")
+    for s in sp["elements"] + [j]:
+        out.append(f"  {s['element']:<9} {s['along_m']:>7.2f} {s['across_m']:>7.2f} {s['north_m']:>8.2f} "
+                   f"{s['east_m']:>8.2f} {s['lat_deg']:>12.6f} {s['lon_deg']:>13.6f}")
+    for r in sp["runs"]:
+        lines = ", ".join(f"{k} {v:.2f} m" for k, v in r["line_m"].items())
+        out.append(f"  run to element {r['element']}: {r['run_m']:.2f} m toward {r['bearing_deg']:.0f}° from the "
+                   f"junction" + (f"; lines {lines}" if lines else ""))
+    out.append("  Check the positions with a tape and a compass corrected for magnetic declination: bearings "
+               "here are true.")
+    return out
+
+
+def _stakes_csv(result: dict) -> str:
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(["option", "orientation_deg", "element", "along_m", "across_m", "north_m", "east_m", "lat_deg",
+                "lon_deg"])
+    for sp in result.get("stakes", []):
+        for s in sp["elements"] + [dict(sp["junction"], element="junction")]:
+            w.writerow([sp["option"], sp["orientation_deg"], s["element"], s["along_m"], s["across_m"],
+                        s["north_m"], s["east_m"], f"{s['lat_deg']:.7f}", f"{s['lon_deg']:.7f}"])
+    return buf.getvalue()
+
+
+def write_layout(site, plan, result: dict, out_dir) -> Path:
+    """The layout figure: every option's ground plan at its chosen bearing."""
+    from ..antenna.pattern import lobe_bearings_deg
+    from ..grid import to_true_bearing
+    from ..render.layout import draw_layout
+
+    plans = staking_plans(site, plan)
+    beams = []
+    for option, op, sp in zip(site.array.options, plan.options, plans):
+        bm = {}
+        for s in option.states:
+            band = s.design_band or site.bands[0].name
+            res = op.patterns.get((band, s.name)) or next(r for (b, n), r in op.patterns.items() if n == s.name)
+            el = int(np.unravel_index(int(np.argmax(res.gain_dbi)), res.gain_dbi.shape)[0])
+            row = to_true_bearing(res.gain_dbi[el], sp.orientation_deg)
+            bm[s.name] = () if option.n_elements == 1 else tuple(b for b, _ in lobe_bearings_deg(row))
+        beams.append(bm)
+    title = f"{site.station.name}: where the elements go (top view, north up; beams on each state's design band)"
+    return draw_layout(plans, site.orientation.allowed_deg, beams, title, Path(out_dir) / "layout.png")
+
+
 def _csv(result: dict) -> str:
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
@@ -212,6 +315,7 @@ def write_files(site, args, result, out_dir) -> list[Path]:
     from .map import write_plan_figures
 
     out = Path(out_dir)
-    written = [atomic_write_json(out / "plan.json", result), atomic_write_text(out / "plan.csv", _csv(result))]
+    written = [atomic_write_json(out / "plan.json", result), atomic_write_text(out / "plan.csv", _csv(result)),
+               atomic_write_text(out / "stakes.csv", _stakes_csv(result))]
     plan = run_plan(site, bool(getattr(args, "json", False)))
-    return written + write_plan_figures(site, plan, args, out)
+    return written + write_plan_figures(site, plan, args, out) + [write_layout(site, plan, result, out)]
