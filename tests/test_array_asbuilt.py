@@ -211,3 +211,69 @@ def test_plan_out_writes_stakes_and_layout(tmp_path):
     rows = list(csv.DictReader((tmp_path / "stakes.csv").open()))
     assert [r["element"] for r in rows] == ["1", "2", "junction"]
     assert {"element", "along_m", "across_m", "north_m", "east_m", "lat_deg", "lon_deg"} <= set(rows[0])
+
+
+def test_three_eighths_pair_rear_null_phase_from_array_factor_theory():
+    # Array-factor theory (Balanis, Antenna Theory, sec. 6.2): two equal
+    # elements d apart cancel toward the rear when the second lags by
+    # 180 deg - k d cos(elevation); at 3/8 wavelength that is -45 deg in the
+    # horizontal plane (-47 deg at the suggestion's 10 deg), not -135 deg.
+    # The coupled model's element patterns and currents differ a little, so
+    # allow the 10 deg.
+    from lobeplan.antenna.model import GROUND_CLASSES
+    from lobeplan.antenna.mom import C0_M_S, solve_elements
+    from lobeplan.antenna.suggest import SUGGEST_ELEVATION_DEG, suggest_currents
+
+    f = 7.1e6
+    d = 0.375 * C0_M_S / f
+    sol = solve_elements(10.3, 0.02, [(0.0, 0.0), (d, 0.0)], f)
+    s = suggest_currents(sol, sol.impedance_ohm + 2.0 * np.eye(2), GROUND_CLASSES["average"], "front-to-back")
+    theory = -(180.0 - 360.0 * 0.375 * math.cos(math.radians(SUGGEST_ELEVATION_DEG)))
+    assert s.phase_deg[1] == pytest.approx(theory, abs=10.0)
+    assert s.phase_deg[1] == pytest.approx(-45.0, abs=10.0)
+    assert s.amplitude[1] == pytest.approx(1.0, abs=0.15) and s.front_to_back_db > 20.0
+
+
+def test_goals_suggestion_beats_the_usual_phasings_on_its_own_measure():
+    from lobeplan.antenna.model import GROUND_CLASSES
+    from lobeplan.antenna.mom import solve_elements
+    from lobeplan.antenna.feed import drive_forced
+    from lobeplan.antenna.pattern import gain_from_currents_dbi
+    from lobeplan.antenna.suggest import suggest_currents
+
+    sol = solve_elements(10.3, 0.02, [(0.0, 0.0), (10.5, 0.0)], 7.1e6)
+    z = sol.impedance_ohm + 2.0 * np.eye(2)
+    ground = GROUND_CLASSES["average"]
+    w = np.zeros((91, 360))
+    w[8:20, 30:50] = 1.0      # a goal 30-50 deg off the baseline, low angles
+    s = suggest_currents(sol, z, ground, "goals", w)
+
+    def mean(i):
+        g = gain_from_currents_dbi(sol, ground, drive_forced(z, i).base_current_a, 1.0)
+        return float(np.sum(w * np.maximum(g, -30.0)) / w.sum())
+
+    for ph in ((0, -90), (-90, 0), (0, 0), (0, -135)):
+        assert s.goal_mean_gain_dbi >= mean(np.exp(1j * np.radians(ph))) - 0.01
+
+
+def test_feed_suggest_json_and_text(capsys):
+    from lobeplan.cli import main
+
+    site = PAIR.format(extra="", state_extra="")
+    import tempfile, pathlib
+
+    with tempfile.TemporaryDirectory() as d:
+        p = pathlib.Path(d) / "site.toml"
+        p.write_text(site)
+        assert main(["feed", str(p), "--suggest", "front-to-back", "--band", "40 m", "--json"]) == 0
+        doc = json.loads(capsys.readouterr().out)
+        (s,) = doc["suggestions"]
+        assert {"option", "band", "target", "amplitude", "phase_deg", "gain_dbi", "front_to_back_db"} <= set(s)
+        assert main(["feed", str(p), "--suggest", "front-to-back", "--band", "40 m"]) == 0
+        text = capsys.readouterr().out
+        assert "[[array.state]]" in text and 'design_band = "40 m"' in text
+        # the printed block is a valid state of this site
+        block = text.split("[[array.state]]", 1)[1].split("\n\n")[0]
+        loads(site.replace("[[band]]", "[[array.state]]" + block + "\n[[band]]", 1), file="t.toml")
+        assert main(["feed", str(p), "--suggest", "loudest"]) == 2
+        assert "--suggest" in capsys.readouterr().err

@@ -24,6 +24,13 @@ def add_arguments(parser) -> None:
     parser.add_argument("--band", metavar="B", default=None, help="only this band (its name in the site file)")
     parser.add_argument("--power-w", metavar="W", default=None,
                         help=f"transmitter power for the part stress (default {DEFAULT_POWER_W:g} W)")
+    parser.add_argument("--suggest", metavar="TARGET", default=None, choices=_suggest_choices(),
+                        help="propose element currents per option and band that maximise gain, front-to-back "
+                             "or the plan's score for the goals; prints ready [[array.state]] blocks")
+
+
+def _suggest_choices():
+    return ("gain", "front-to-back", "goals")   # lobeplan.antenna.suggest.TARGETS, without its imports
 
 
 def power_w(args) -> float:
@@ -208,9 +215,86 @@ def _design(spec, option, band) -> dict:
     return {"min_line_m": round(min_len, 3), "lines": lines}
 
 
+def _goal_weights(site, option, band_name):
+    """Pooled need weights of the band's goals in the option's array frame, at its chosen bearing."""
+    from ..grid import to_true_bearing
+    from .plan import _chosen_bearing, run_plan
+
+    plan = run_plan(site, True)
+    op = next(o for o in plan.options if o.option == option.name)
+    theta = _chosen_bearing(site, plan, op)
+    total = None
+    for gb in plan.goal_bands:
+        if gb.band_name == band_name and gb.needs.weights.sum() > 0:
+            w = gb.weight * gb.needs.weights
+            total = w if total is None else total + w
+    if total is None:
+        return None, theta
+    return to_true_bearing(total, -theta), theta
+
+
+def suggestions(site, target: str, bands) -> list[dict]:
+    """A suggested state per option (of two or more elements) and band."""
+    from ..antenna.pattern import vertical_gain_dbi
+    from ..antenna.suggest import SUGGEST_ELEVATION_DEG, suggest_currents
+
+    out = []
+    for band in bands:
+        for option in site.array.options:
+            if option.n_elements < 2:
+                continue
+            sol = coupled_elements(site.array, option, band.freq_hz)
+            z = base_impedance_ohm(site.array, option, band.freq_hz, sol)
+            weights, theta = (None, None)
+            if target == "goals":
+                weights, theta = _goal_weights(site, option, band.name)
+                if weights is None:
+                    out.append({"option": option.name, "band": band.name, "target": target, "amplitude": None,
+                                "phase_deg": None, "gain_dbi": None, "front_to_back_db": None,
+                                "note": "no goal is open on this band"})
+                    continue
+            vert = float(np.interp(SUGGEST_ELEVATION_DEG, np.arange(91.0), vertical_gain_dbi(site.array, band.freq_hz)))
+            sug = suggest_currents(sol, z, site.array.ground, target, weights, vert)
+            out.append({"option": option.name, "band": band.name, "target": target,
+                        "amplitude": [round(a, 3) for a in sug.amplitude],
+                        "phase_deg": [round(p, 1) + 0.0 for p in sug.phase_deg],
+                        "gain_dbi": round(sug.gain_dbi, 2), "front_to_back_db": round(sug.front_to_back_db, 2),
+                        "elevation_deg": SUGGEST_ELEVATION_DEG,
+                        "goal_mean_gain_dbi": None if sug.goal_mean_gain_dbi is None else round(sug.goal_mean_gain_dbi, 2),
+                        "orientation_deg": theta})
+    return out
+
+
+def _suggest_text(result: dict, site_options: int) -> str:
+    out = [f"# Suggested switch states (target: {result['target']}); paste into the site file.",
+           f"# forward gain and F/B along the baseline at {result['elevation_deg']:g} deg elevation, 1 W into "
+           "the bases; the currents are forced (their network is designed on the band named).", ""]
+    for s in result["suggestions"]:
+        if s["amplitude"] is None:
+            out.append(f"# {s['option']}, {s['band']}: {s['note']}")
+            out.append("")
+            continue
+        extra = "" if s["goal_mean_gain_dbi"] is None else \
+            f", mean {s['goal_mean_gain_dbi']:+.2f} dBi over the goals at {s['orientation_deg']:.0f} deg"
+        out.append(f"# {s['option']}, {s['band']}: forward {s['gain_dbi']:+.2f} dBi, F/B {s['front_to_back_db']:.1f} dB{extra}")
+        out.append("[[array.state]]" if site_options == 1 else f"[[array.option.state]]   # in the block of {s['option']!r}")
+        out.append(f'name = "{s["target"]} {s["band"]}"')
+        out.append("phase_deg = [" + ", ".join(f"{p:g}" for p in s["phase_deg"]) + "]")
+        out.append("amplitude = [" + ", ".join(f"{a:g}" for a in s["amplitude"]) + "]")
+        out.append(f'design_band = "{s["band"]}"')
+        out.append("")
+    return "\n".join(out)
+
+
 def build(site, args=None) -> dict:
     spec = site.array
     power = power_w(args)
+    target = getattr(args, "suggest", None)
+    if target is not None:
+        from ..antenna.suggest import SUGGEST_ELEVATION_DEG
+
+        return {"target": target, "elevation_deg": SUGGEST_ELEVATION_DEG, "options": len(spec.options),
+                "suggestions": suggestions(site, target, select_bands(site, getattr(args, "band", None)))}
     out = []
     for band in select_bands(site, getattr(args, "band", None)):
         for option in spec.options:
@@ -292,6 +376,8 @@ FOOTNOTES = (
 
 
 def format_text(result: dict) -> str:
+    if "suggestions" in result:
+        return _suggest_text(result, result["options"])
     lines = []
     for b in result["bands"]:
         sp = "" if b["spacing_m"] is None else f", spacing {b['spacing_m']:g} m"
