@@ -82,6 +82,22 @@ def goal_spans(start_deg: float, end_deg: float) -> list[tuple[float, float]]:
     return [(a, 360.0), (0.0, b)]
 
 
+def _free_spot(placed: list, x: float, y: float, n_chars: int, deg_per_px: tuple[float, float], dpi: float):
+    """Where a two-line box label goes: above its box, raised past labels it would overlap.
+
+    ``placed`` collects (x_lo, x_hi, y_lo, y_hi) of the labels so far, in
+    data units; a label is about 0.62 em per character wide and 2.4 em tall.
+    """
+    em_px = _BOX_TEXT * dpi / 72.0
+    half_w = 0.5 * 0.62 * em_px * max(n_chars, 7) * deg_per_px[0]
+    height = 2.4 * em_px * deg_per_px[1]
+    for lo, hi, ylo, yhi in sorted(placed, key=lambda p: p[2]):
+        if x + half_w > lo and x - half_w < hi and y + height > ylo and y < yhi:
+            y = yhi
+    placed.append((x - half_w, x + half_w, y, y + height))
+    return x, y
+
+
 def _shown(row: dict) -> np.ndarray:
     """What the shaded chart shows: gain, or directivity for a receive option."""
     g = np.asarray(row["gain_dbi"], dtype=float)
@@ -147,6 +163,10 @@ def band_figure(rows: list[dict], station_name: str = ""):
                    linewidths=(0.4, 0.8), linestyles=((0, (2, 2)), "solid"))
         if takeoff is not None:
             ax.axhline(takeoff, color=INK, linewidth=0.7, linestyle=(0, (1, 2)))
+        box = ax.get_position()  # figure fraction: degrees per pixel of this chart, for label spacing
+        deg_per_px = (360.0 / (box.width * fig.get_figwidth() * fig.dpi),
+                      y_top / (box.height * fig.get_figheight() * fig.dpi))
+        placed: list[tuple[float, float, float, float]] = []
         for goal in row["goals"]:
             el = goal["elevation_deg"]
             if el["p10"] is None or el["p90"] is None:
@@ -163,7 +183,11 @@ def band_figure(rows: list[dict], station_name: str = ""):
                                        edgecolor=INK, linewidth=0.4, zorder=4.1))
             lo, hi = pieces[widest]
             text = _goal_label(goal) + ("\nclosed" if value is None else f"\n{value:+.1f} dB")
-            ax.text(0.5 * (lo + hi), el["p90"] + 1.0, text, ha="center", va="bottom", fontsize=_BOX_TEXT,
+            x, y = _free_spot(placed, 0.5 * (lo + hi), el["p90"] + 1.0, len(_goal_label(goal)), deg_per_px,
+                              fig.dpi)
+            if y > el["p90"] + 1.0:  # raised past another label: a leader down to its box
+                ax.plot([x, x], [el["p90"], y], color=INK, linewidth=0.5, zorder=4.5)
+            ax.text(x, y, text, ha="center", va="bottom", fontsize=_BOX_TEXT,
                     color=INK, zorder=5, path_effects=_halo(), clip_on=True)
         ax.set_xlim(0.0, 360.0)
         ax.set_ylim(0.0, y_top)
@@ -217,17 +241,21 @@ def band_figure(rows: list[dict], station_name: str = ""):
 
     bars = [(g, _goal_label(g)) for g in first["goals"] if g["elevation_deg"]["p10"] is not None]
     uniq = list({label: g for g, label in bars}.items())
-    top_y = peak + 3.0
-    step = 1.2
+    # the bars take the top of the chart, one line each, above the curves
+    line = 0.05
+    share = min(0.45, line * (len(uniq) + 0.5))
+    lo_db, hi_db = peak - SHADE_RANGE_DB, peak + 3.0
+    along_top = ax_el.get_xaxis_transform()
     for k, (label, g) in enumerate(uniq):
-        y = top_y + 1.0 + step * k
+        y = 1.0 - line * (k + 0.8)
         ax_el.plot([g["elevation_deg"]["p10"], g["elevation_deg"]["p90"]], [y, y], color="#7b6aa6",
-                   linewidth=2.2, solid_capstyle="butt")
-        ax_el.text(g["elevation_deg"]["p90"] + 0.8, y, label, fontsize=6.0, va="center", color="#4a3f66")
+                   linewidth=2.2, solid_capstyle="butt", transform=along_top)
+        ax_el.text(g["elevation_deg"]["p90"] + 0.8, y, label, fontsize=6.0, va="center", color="#4a3f66",
+                   transform=along_top)
     if takeoff is not None:
         ax_el.axvline(takeoff, color=INK, linewidth=0.7, linestyle=(0, (1, 2)))
     ax_el.set_xlim(0.0, 90.0)
-    ax_el.set_ylim(peak - SHADE_RANGE_DB, top_y + 1.0 + step * max(len(uniq), 1))
+    ax_el.set_ylim(lo_db, hi_db + (hi_db - lo_db) * share / (1.0 - share))
     ax_el.set_title("takeoff-angle cut through each beam; bars: goals' needed angles", fontsize=8.5,
                     loc="left", color=INK)
     ax_el.set_xlabel("takeoff angle, °", fontsize=7.5)

@@ -249,7 +249,7 @@ def _block_text(rows: list[dict]) -> list[str]:
     lines.append(f"  {'goal':<22} {'path':<5} {'bearings':>10} {'takeoff':>8}"
                  + "".join(f"  {p['state'][:18]:>{width}}" for p in rows))
     lines.append(f"  {'':<22} {'':<5} {'':>10} {'':>8}"
-                 + "".join(f"  {('dB' if receive else 'dBi') + '   vs 1':>{width}}" for p in rows))
+                 + "".join(f"  {('dB' if receive else 'dBi'):>5} {'vs 1':>5}".rjust(width + 2) for p in rows))
     for k, goal in enumerate(first["goals"]):
         label = goal["goal"] + (" (long)" if goal["path"] == "long" else "")
         lines.append(f"  {label[:22]:<22} {goal['path']:<5} {_arc_text(goal):>10} {_takeoff_text(goal):>8}"
