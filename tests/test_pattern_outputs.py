@@ -312,7 +312,7 @@ def test_receive_option_is_scored_by_directivity(write_site, capsys, tmp_path):
     # the same array: the receive figures differ from the transmit ones
     assert comp["rx"]["score_db"] != pytest.approx(comp["tx"]["score_db"], abs=1e-3)
     assert main(["plan", path]) == 0
-    assert "scored by directivity" in capsys.readouterr().out
+    assert "Scored by directivity, not gain" in capsys.readouterr().out
     # no match for the receive option, no exposure estimate from it
     feed = _json_of(capsys, ["feed", path, "--json"])
     fed = {b["option"]: b for b in feed["bands"]}

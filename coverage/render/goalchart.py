@@ -270,9 +270,10 @@ def band_figure(rows: list[dict], station_name: str = ""):
     fig.suptitle(f"{head}{first['band']}, {first['option']}, baseline along {first['orientation_deg']:.1f}° "
                  f"({where})" + ("; receive option" if receive else ""), fontsize=10.5, color=INK, x=0.06,
                  ha="left")
-    what = "directivity over one vertical's" if receive else "advantage over one vertical"
+    what = ("advantage in directivity (over the sky mean) over one vertical" if receive
+            else "advantage over one vertical")
     fig.text(0.06, 0.012, f"Boxes: each goal's bearings (great-circle span) and needed takeoff angles (10th-90th "
-             f"percentile), with that state's {what} toward it, box edge coloured -6 (ember) to +6 dB (spruce). "
+             f"percentile), with that state's {what} toward it, edge -6 (ember) to +6 dB (spruce). "
              f"Contours at 3 dB (solid) and 10 dB (dashed) under each state's peak.", fontsize=6.8, color=INK)
     return fig
 

@@ -135,9 +135,9 @@ def format_text(result: dict) -> str:
                        + "".join(f" {_f(g['advantage_db'], '+16.2f')}" for g in rows))
     receive = [c["option"] for c in result["spacing_comparison"] if c.get("use") == "receive"]
     if receive:
-        out += ["", "Receive options (use = \"receive\"): " + ", ".join(receive) + " are scored by directivity, "
-                "not gain: their mean and p10 columns are dB over the sky mean (the solid-angle mean gain over "
-                "the upper hemisphere, over this ground) and their advantage is over one vertical's directivity."]
+        out += ["", "Scored by directivity, not gain (use = \"receive\"): " + ", ".join(receive) + ". For these "
+                "the mean and p10 columns are dB over the sky mean (the solid-angle mean gain over the upper "
+                "hemisphere, over this ground) and the advantage is over one vertical's directivity."]
     if result["caveats"]:
         out += ["", "Propagation model notes"]
         out += [f"  - {c}" for c in result["caveats"]]
