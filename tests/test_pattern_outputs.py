@@ -271,23 +271,12 @@ def test_goal_cells_agree_with_the_plan(write_site, capsys):
 # ---------------------------------------------------------------------------
 # receive options
 
-RX_OPTIONS = """
+_OPTION_BLOCK = """
 [[array.option]]
-name = "tx"
+name = "{name}"
 layout = "pair"
 spacing_m = 10.5
-  [[array.option.state]]
-  name = "fwd"
-  phase_deg = [0, -90]
-  [[array.option.state]]
-  name = "line"
-  line_m = [6.0, 13.0]
-
-[[array.option]]
-name = "rx"
-layout = "pair"
-spacing_m = 10.5
-use = "receive"
+use = "{use}"
   [[array.option.state]]
   name = "fwd"
   phase_deg = [0, -90]
@@ -295,6 +284,8 @@ use = "receive"
   name = "line"
   line_m = [6.0, 13.0]
 """
+# the same pair twice, once to transmit and once to receive
+RX_OPTIONS = _OPTION_BLOCK.format(name="tx", use="transmit") + _OPTION_BLOCK.format(name="rx", use="receive")
 
 
 def test_receive_option_is_scored_by_directivity(write_site, capsys, tmp_path):

@@ -148,7 +148,7 @@ def band_figure(rows: list[dict], station_name: str = ""):
 
     fig = plt.figure(figsize=(13.0, max(5.8, 2.35 * n + 1.5)))
     gs = GridSpec(2 * n, 4, figure=fig, width_ratios=(1.45, 0.03, 0.11, 1.05), left=0.06, right=0.97,
-                  top=1.0 - 0.85 / fig.get_figheight(), bottom=0.75 / fig.get_figheight(),
+                  top=1.0 - 0.85 / fig.get_figheight(), bottom=0.95 / fig.get_figheight(),
                   hspace=1.1 if n > 1 else 0.5, wspace=0.08)
     needed = [g["elevation_deg"]["p90"] for g in first["goals"] if g["elevation_deg"]["p90"] is not None]
     # room for the highest box and its label, in 15 deg steps; the full sky only if the needs go there
@@ -274,7 +274,10 @@ def band_figure(rows: list[dict], station_name: str = ""):
             else "advantage over one vertical")
     fig.text(0.06, 0.012, f"Boxes: each goal's bearings (great-circle span) and needed takeoff angles (10th-90th "
              f"percentile), with that state's {what} toward it, edge -6 (ember) to +6 dB (spruce). "
-             f"Contours at 3 dB (solid) and 10 dB (dashed) under each state's peak.", fontsize=6.8, color=INK)
+             f"Contours at 3 dB (solid) and 10 dB (dashed) under each state's peak.\nDotted: the band's key "
+             f"takeoff angle, the median of every goal's needed takeoff angles on the band (weighted as the plan "
+             f"weighs them); the takeoff cut follows each state's strongest bearing there.", fontsize=6.8,
+             color=INK, va="bottom", linespacing=1.4)
     return fig
 
 
