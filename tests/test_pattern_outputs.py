@@ -337,3 +337,19 @@ def test_receive_only_site_has_no_exposure_and_no_short_element_caveat(write_sit
     assert not any("outside the 0.1-0.75" in c for c in plan["caveats"])
     pat = _json_of(capsys, ["pattern", path, "--json"])
     assert all(p["use"] == "receive" and p["rdf_db"] > 3.0 for p in pat["patterns"])
+
+
+def test_receive_plan_keeps_gain_for_the_maps():
+    # the maps label lobes in dBi: a receive option's patterns stay gain,
+    # only its score and goal rows use directivity
+    from lobeplan.antenna.pattern import array_pattern
+    from lobeplan.plan.planner import make_plan
+
+    _, site = _site(geometry="", layout=None, states=RX_OPTIONS, orientation=40)
+    plan = make_plan(site)
+    rx = next(o for o in plan.options if o.option == "rx")
+    option = site.array.options[1]
+    assert option.name == "rx"
+    direct = array_pattern(site.array, option, option.states[0], 7.1e6).gain_dbi
+    assert np.array_equal(rx.patterns[("40 m", "fwd")].gain_dbi, direct)
+    assert rx.use == "receive" and rx.reference_db is not None

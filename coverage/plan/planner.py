@@ -114,8 +114,9 @@ class OptionPlan:
     best_state: np.ndarray             # (n_goalband, n_theta) index of that state
     state_names: tuple[str, ...]
     patterns: dict = field(repr=False, default_factory=dict)   # (band, state) -> ArrayResult
-    # receive options (issue 14): ``patterns`` hold directivity over the sky
-    # mean instead of gain, and the reference is one vertical's directivity
+    # receive options (issue 14) are scored by directivity over the sky mean
+    # (``patterns`` still hold gain, for the maps); the reference is then one
+    # vertical's directivity
     use: str = "transmit"
     reference_db: dict | None = field(repr=False, default=None)   # band -> (91,), receive only
 
@@ -221,14 +222,14 @@ def make_plan(site, goal_bands: tuple[GoalBand, ...] | None = None,
     for option in spec.options:
         patterns = {(band_name, s.name): array_pattern(spec, option, s, f)
                     for band_name, f in bands.items() for s in option.states}
-        option_prepared, option_ref = prepared, None
+        option_prepared, option_ref, scored = prepared, None, patterns
         if option.receive:
             if not receive_ref:
                 rx = receive_reference(ref)
                 receive_ref.append((rx, prepare_needs(goal_bands, rx)))
             option_ref, option_prepared = receive_ref[0]
-            patterns = as_directivity(patterns)
-        values, best_state = score_option(option, patterns, goal_bands, option_prepared, thetas, orient.step_deg,
+            scored = as_directivity(patterns)
+        values, best_state = score_option(option, scored, goal_bands, option_prepared, thetas, orient.step_deg,
                                           method)
         weights = np.array([gb.weight * pre["open"] for gb, pre in zip(goal_bands, option_prepared)])
         open_rows = np.isfinite(values[:, 0]) & (weights > 0)
@@ -424,7 +425,10 @@ def goal_rows(plan_option: OptionPlan, goal_bands, theta_index: int, ref: dict) 
             continue
         s_idx = int(plan_option.best_state[i, theta_index])
         s_name = plan_option.state_names[s_idx]
-        g = _rotate(floored(plan_option.patterns[(gb.band_name, s_name)].gain_dbi), theta)
+        g = plan_option.patterns[(gb.band_name, s_name)].gain_dbi
+        if plan_option.reference_db is not None:  # receive: directivity, as it was scored
+            g = directivity_dbi(g)
+        g = _rotate(floored(g), theta)
         mean = float(np.sum(w * g) / open_f)
         ref_mean = _ref_mean(w, ref[gb.band_name])
         p10 = weighted_quantile(g, w, 0.10)
