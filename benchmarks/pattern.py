@@ -65,18 +65,22 @@ def figure(repeats: int = 3) -> dict:
     site = loads(text, file=str(demo), base_dir=str(demo.parent))
     rows = pattern_verb.build(site, SimpleNamespace(band="40 m", state=None, json=True))["patterns"]
     block = [r for r in rows if r["option"] == rows[0]["option"]]
-    times = []
+    times, cpu = [], []
     with tempfile.TemporaryDirectory() as tmp:
-        t0 = time.perf_counter()
+        t0, c0 = time.perf_counter(), time.process_time()
         from lobeplan.render.goalchart import draw_band_figure
 
         for i in range(repeats):
             draw_band_figure(block, Path(tmp) / f"f{i}.png", site.station.name)
-            t1 = time.perf_counter()
+            t1, c1 = time.perf_counter(), time.process_time()
             times.append(t1 - t0)
-            t0 = t1
+            cpu.append(c1 - c0)
+            t0, c0 = t1, c1
+    # CPU time beside wall time: on a shared machine the wall clock also
+    # counts other processes' turns
     return {"figure_states": len(block), "figure_first_s": round(times[0], 3),
-            "figure_s_median": round(statistics.median(times[1:] or times), 3), "figure_budget_s": 2.0}
+            "figure_s_median": round(statistics.median(times[1:] or times), 3),
+            "figure_cpu_s_median": round(statistics.median(cpu[1:] or cpu), 3), "figure_budget_s": 2.0}
 
 
 if __name__ == "__main__":
