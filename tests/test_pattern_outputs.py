@@ -140,6 +140,24 @@ def test_rdf_quarter_wave_cardioid_over_perfect_ground(rdf_el):
     assert rows[0]["peak_azimuth_deg"] == pytest.approx(0.0, abs=1.0)
 
 
+@pytest.mark.parametrize("height_wl", [0.05, 0.25, 0.5])
+def test_sky_mean_conserves_power_over_perfect_ground(height_wl):
+    # Over a perfect plane every watt into a lossless element leaves through
+    # the upper hemisphere, so int G dOmega = 4 pi over 2 pi sr: the sky mean
+    # is 2 (3.01 dBi) whatever the pattern (definition of gain, Balanis
+    # sec. 2.7-2.9). With a series ground loss the mean falls by the
+    # efficiency R / (R + R_loss). 0.02 dB: the 1 deg trapezoid rule.
+    f = 7.1e6
+    lam = C0 / f
+    for loss in (0.0, 5.0):
+        _, site = _site(height=round(height_wl * lam, 4), radius=0.005, layout="single", geometry="",
+                        ground="perfect", loss=loss, states="", orientation=0)
+        (row,) = pattern_verb.build(site, _args())["patterns"]
+        r_in = row["feedpoint_impedance_ohm"][0][0]
+        efficiency = (r_in - loss) / r_in
+        assert row["sky_mean_gain_dbi"] == pytest.approx(10 * math.log10(2 * efficiency), abs=0.02)
+
+
 def test_rdf_ignores_losses():
     # directivity is a ratio of the same pattern: ground loss scales gain and
     # the sky mean alike (definition; Balanis sec. 2.7)
