@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 import re
+import textwrap
 from pathlib import Path
 
 import numpy as np
@@ -277,7 +278,8 @@ def format_text(result: dict) -> str:
     if result["patterns"]:
         rdf = result["patterns"][0]["rdf_elevation_deg"]
         lines.append(f"RDF at {rdf:g}° takeoff (rdf_elevation_deg).")
-        lines += [f"- {n}" for n in result.get("notes", NOTES)]
+        lines += [textwrap.fill(n, 100, initial_indent="- ", subsequent_indent="  ")
+                  for n in result.get("notes", NOTES)]
     return "\n".join(lines) + "\n"
 
 
