@@ -265,7 +265,8 @@ def band_figure(rows: list[dict], station_name: str = ""):
         ax.grid(True, color=_GRID, linewidth=0.5)
         ax.tick_params(labelsize=7)
 
-    where = ("the plan's best bearing" if first.get("orientation_from") == "plan" else "from the site file")
+    where = {"plan": "the plan's best bearing", "site": "from the site file",
+             "none": "no goal is open"}.get(first.get("orientation_from"), "")
     head = f"{station_name}: " if station_name else ""
     fig.suptitle(f"{head}{first['band']}, {first['option']}, baseline along {first['orientation_deg']:.1f}° "
                  f"({where})" + ("; receive option" if receive else ""), fontsize=10.5, color=INK, x=0.06,
