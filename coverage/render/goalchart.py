@@ -226,7 +226,10 @@ def band_figure(rows: list[dict], station_name: str = ""):
         az_row = s[el_i]
         ax_az.plot(np.arange(361.0), np.append(az_row, az_row[0]), color=colour, linestyle=style, linewidth=1.5,
                    label=row["state"], gid=f"cut-az:{row['state']}")
-        beam = int(np.argmax(az_row))
+        # the JSON grid is rounded to 0.01 dB, which flattens a broad beam's top:
+        # follow the state's strongest lobe (found on the unrounded pattern)
+        beam = (int(round(row["lobes"][0]["bearing_deg"])) % 360 if row.get("lobes")
+                else int(np.argmax(az_row)))
         ax_el.plot(np.arange(91.0), s[:, beam], color=colour, linestyle=style, linewidth=1.5,
                    label=f"{row['state']} toward {beam}°", gid=f"cut-el:{row['state']}")
         peak = max(peak, float(s.max()))
