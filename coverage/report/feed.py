@@ -168,7 +168,7 @@ def _state_row(spec, option, state, band, power=DEFAULT_POWER_W) -> dict:
         "match": None,
         "network": None,
     }
-    if state.is_fed:
+    if state.is_fed and not option.receive:  # a receive option needs no transmitter match
         row["match"] = _match(spec, option, state.line_m, band)
     elif option.n_elements == 1:
         row["match"] = _base_match(spec, option, band)
@@ -202,7 +202,7 @@ def _design(spec, option, band) -> dict:
             entry["network"] = network_dict(net)
             entry["line_m"] = [round(x, 3) for x in net.line_m]
             entry["current_error"] = round(net.current_error, 5)
-            if net.form == "junction-lines":
+            if net.form == "junction-lines" and not option.receive:
                 entry["match"] = _match(spec, option, net.line_m, band)
         q = quarter_wave_forcing(spec.feed, band.freq_hz, w)
         entry["quarter_wave_forcing"] = {
@@ -302,6 +302,7 @@ def build(site, args=None) -> dict:
             out.append({
                 "band": band.name,
                 "option": option.name,
+                "use": option.use,
                 "freq_mhz": round(band.freq_hz / 1e6, 6),
                 "spacing_m": None if option.layout in ("single", "custom") else option.spacing_m,
                 "ground_loss_ohm": spec.ground_loss_ohm,
@@ -318,6 +319,9 @@ def _z(p) -> str:
 
 
 def _parts(m) -> str:
+    if m is None:
+        return "none (a receive option)"
+
     def one(c):
         return f"{c['uh']:.3f} uH" if c["part"] == "L" else f"{c['pf']:.0f} pF"
     swrs = ", ".join(f"{r['swr']:.2f} at {r['freq_mhz']:g}" for r in m["swr"])
