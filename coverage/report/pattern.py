@@ -273,7 +273,21 @@ def _block_text(rows: list[dict]) -> list[str]:
         lines.append(f"  {p['state'][:18]:<18} {lobes[:22]:<22} {_fmt(p['front_to_back_db'])} "
                      f"{_fmt(p['beamwidth_deg'], '7.0f')} {p['peak_gain_dbi']:6.2f} {at:>10} "
                      f"{p['rdf_db']:5.1f}  {cur}")
+    lines += _kind_lines(rows)
     return lines
+
+
+def _kind_lines(rows: list[dict]) -> list[str]:
+    """Issue 10: which states' currents are as built, forced or fed on this band."""
+    built = [p for p in rows if p.get("kind") == "as-built"]
+    forced = [p["state"] for p in rows if p.get("kind") == "forced" and len(p["element_currents"]) > 1]
+    out = []
+    for band in dict.fromkeys(p["design_band"] for p in built):
+        out.append(f"  as built from the {band} network (the currents it delivers here): "
+                   + ", ".join(p["state"] for p in built if p["design_band"] == band))
+    if forced:
+        out.append("  forced (the wanted currents held exactly): " + ", ".join(forced))
+    return out
 
 
 def format_text(result: dict) -> str:
