@@ -388,10 +388,10 @@ def _resolve_networks(r: _Reader, t: dict, array: ArraySpec, bands: tuple[Band, 
                 _check_reach(r, option, state, k)
                 states.append(state)
                 continue
-            if option.n_elements == 1:
+            own = _network_keys(r, st, k, names, level)   # checked for one vertical too
+            if option.n_elements == 1:   # no network: its base current is the state
                 states.append(state)
                 continue
-            own = _network_keys(r, st, k, names, level)
             states.append(replace(state, design_band=own["design_band"],
                                   design_freq_hz=freq[own["design_band"]],
                                   forced_freqs_hz=tuple(freq[b] for b in own["forced_bands"])))

@@ -9,11 +9,14 @@ from lobeplan.antenna.feed import loading_coil
 from lobeplan.fileio import dumps_json
 from lobeplan.site import element_caveats, loads
 
-PAIR = """
+HEAD = """
 [station]
 name = "Test lot"
 lat = 45.0
 lon = -93.0
+"""
+
+PAIR = HEAD + """
 [array]
 height_m = 10.3
 layout = "pair"
@@ -38,11 +41,7 @@ region = "continent:Europe"
 points_per_goal = 40
 """
 
-SINGLE = """
-[station]
-name = "Test lot"
-lat = 45.0
-lon = -93.0
+SINGLE = HEAD + """
 [array]
 height_m = 10.3
 layout = "single"

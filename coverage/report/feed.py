@@ -34,16 +34,11 @@ def _suggest_choices():
 
 
 def power_w(args) -> float:
+    """--power-w in watts (the same check as the exposure verb's), default 100 W."""
+    from .exposure import _number
+
     text = getattr(args, "power_w", None)
-    if text is None:
-        return DEFAULT_POWER_W
-    try:
-        value = float(str(text))
-    except ValueError:
-        raise UsageError(f"--power-w: {text!r} is not a number; expected watts, more than 0 and up to 100000") from None
-    if not (0.0 < value <= 1e5):
-        raise UsageError(f"--power-w: {text} is out of range; expected watts, more than 0 and up to 100000")
-    return value
+    return DEFAULT_POWER_W if text is None else _number(str(text), "--power-w", 0.0, 1e5, True)
 
 
 def check_arguments(args) -> None:
