@@ -135,3 +135,17 @@ def test_a_clip_that_misses_says_how_it_was_read():
     assert "[west, south, east, north]" in msg
     with pytest.raises(R.RegionError, match="crosses 180 deg"):
         R.resolve("circle:0,0,500", STATION, clip=(50.0, 10.0, 40.0, 20.0))
+
+
+def test_paths_says_when_a_region_has_fewer_points(write_site, capsys):
+    from helpers import MINIMAL
+
+    from lobeplan.cli import main
+
+    p = write_site(MINIMAL.replace('region = "continent:Europe"', 'region = "circle:48,11,0.01"'))
+    assert main(["paths", str(p)]) == 0
+    out = capsys.readouterr().out
+    assert "Fewer points than points_per_goal (500) for circle:48,11,0.01" in out
+    assert main(["paths", str(p), "--json"]) == 0
+    data = __import__("json").loads(capsys.readouterr().out)
+    assert data["goals"][0]["points"] == 1 and data["points_per_goal"] == 500

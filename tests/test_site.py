@@ -108,7 +108,7 @@ def test_demo_site_loads(demo_path):
 def test_paths_json_shape(demo_path, capsys):
     assert main(["paths", str(demo_path), "--json"]) == 0
     data = json.loads(capsys.readouterr().out)
-    assert set(data) == {"station", "goals"}
+    assert set(data) == {"station", "points_per_goal", "goals"}
     assert set(data["station"]) == {"lat_deg", "lon_deg", "locator"}
     g = data["goals"][0]
     assert set(g) == {"name", "region", "path", "points", "bearing_deg", "distance_km"}
