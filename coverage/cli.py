@@ -6,6 +6,8 @@ with its ``--help`` line) that provides
 - ``add_arguments(parser)``: the verb's own options (optional);
 - ``build(site, args) -> dict``: the JSON-ready result (strict JSON);
 - ``format_text(result) -> str``: the table a person reads;
+- ``SITE_SECTIONS`` (optional): the site-file tables the verb needs, when
+  not all of [station], [array], [[band]] and [[goal]];
 - ``write_files(site, args, result, out_dir) -> list[Path]`` (optional):
   files for ``--out``, each written atomically; without it ``--out`` gets
   ``<verb>.json``.
@@ -124,7 +126,7 @@ def _signals_held():
 def _run(args: argparse.Namespace, mod: object, state: dict) -> int:
     from .fileio import (atomic_write_json, check_out_dir, commit_staging, discard_staging, dumps_json,
                          is_output_fault, start_staging)
-    from .site import load
+    from .site import SECTIONS, load
 
     if hasattr(mod, "site_path"):
         site_path = mod.site_path(args)
@@ -137,7 +139,7 @@ def _run(args: argparse.Namespace, mod: object, state: dict) -> int:
         out_dir = mod.default_out(args)
     if out_dir is not None:
         check_out_dir(out_dir)  # refuse before any work is done, create nothing yet
-    site = load(site_path)
+    site = load(site_path, getattr(mod, "SITE_SECTIONS", SECTIONS))
     result = mod.build(site, args)
     text = dumps_json(result) if args.json else mod.format_text(result)
     done = None

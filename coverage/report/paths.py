@@ -6,7 +6,9 @@ import numpy as np
 from ..geo.paths import bearing_arc, goal_paths
 from ..geo.regions import goal_points, region_area
 
-__all__ = ["build", "format_text", "goal_path_rows"]
+__all__ = ["SITE_SECTIONS", "build", "format_text", "goal_path_rows"]
+
+SITE_SECTIONS = ("station", "goal")  # [array] is not used here
 
 
 def goal_path_rows(site) -> list[dict]:
