@@ -100,13 +100,27 @@ def atomic_write_json(path: str | os.PathLike[str], obj: Any) -> Path:
     return atomic_write_text(path, dumps_json(obj))
 
 
+# Metadata that would change from run to run: dates (PDF, SVG).
+_NO_DATES = {"pdf": {"CreationDate": None, "ModDate": None}, "svg": {"Date": None}}
+
+
 def atomic_savefig(fig: Any, path: str | os.PathLike[str], **kwargs: Any) -> Path:
-    """Save a matplotlib figure atomically; the format follows the suffix."""
+    """Save a matplotlib figure atomically; the format follows the suffix.
+
+    The bytes depend on the figure only: no dates in PDF or SVG metadata,
+    and SVG element ids (clip paths) hashed with a fixed salt instead of a
+    random one, so a rerun gives the same file.
+    """
     import io
 
+    import matplotlib
+
     target = Path(path)
+    fmt = target.suffix.lstrip(".").lower()
+    meta = {**_NO_DATES.get(fmt, {}), **(kwargs.pop("metadata", None) or {})}
     buf = io.BytesIO()
-    fig.savefig(buf, format=target.suffix.lstrip(".").lower(), **kwargs)
+    with matplotlib.rc_context({"svg.hashsalt": "lobeplan"}):
+        fig.savefig(buf, format=fmt, metadata=meta or None, **kwargs)
     return atomic_write_bytes(target, buf.getvalue())
 
 
