@@ -146,7 +146,8 @@ class Staging:
     """The folder a run writes into before its results move to ``out``.
 
     ``folder`` sits beside ``out`` (same filesystem, so moving is a rename);
-    if the parent is not writable, inside ``out`` as a hidden folder.
+    if the parent is not writable or ``out`` is a mount point, inside ``out``
+    as a hidden folder.
     ``created`` lists the folders made for it that did not exist before,
     deepest last, so that a failed run can remove them again.
     """
@@ -175,6 +176,14 @@ def _make_dirs(path: Path, created: list[Path]) -> None:
         created.append(d)
 
 
+def _same_device(parent: Path, out: Path) -> bool:
+    """False when ``out`` is a mount point: a rename from its parent would fail (EXDEV)."""
+    try:
+        return not out.exists() or os.stat(parent).st_dev == os.stat(out).st_dev
+    except OSError:
+        return False
+
+
 def start_staging(out_dir: str | os.PathLike[str]) -> Staging:
     """Make the staging folder for a run that writes into ``out_dir``."""
     out = Path(out_dir)
@@ -183,7 +192,7 @@ def start_staging(out_dir: str | os.PathLike[str]) -> Staging:
     parent = full.parent
     try:
         _make_dirs(parent, created)
-        if os.access(parent, os.W_OK) and parent != full:
+        if os.access(parent, os.W_OK) and parent != full and _same_device(parent, full):
             folder = Path(tempfile.mkdtemp(prefix=f".{full.name}.lobeplan-", dir=parent))
         else:  # the parent is not ours to write: stage inside the folder itself
             _make_dirs(full, created)

@@ -173,3 +173,16 @@ def test_a_signal_while_writing_leaves_nothing(write_site, tmp_path, sig, code, 
     assert proc.returncode == code
     assert says in err and f"nothing was written to {out}" in err and "Traceback" not in err
     assert not out.exists() and _leftovers(tmp_path) == []
+
+
+def test_an_out_folder_on_another_filesystem_is_staged_inside_it(tmp_path, monkeypatch):
+    # a mount point: a rename from its parent would fail with EXDEV
+    out = tmp_path / "usb"
+    out.mkdir()
+    monkeypatch.setattr(fileio, "_same_device", lambda parent, folder: False)
+    staging = fileio.start_staging(out)
+    assert staging.folder.parent == out and staging.folder.name.startswith(".lobeplan-staging-")
+    fileio.atomic_write_text(staging.folder / "a.txt", "x")
+    done = fileio.commit_staging(staging, [staging.folder / "a.txt"], "paths")
+    assert sorted(p.name for p in out.iterdir()) == [fileio.MANIFEST, "a.txt"]
+    assert [p.name for p in done.written] == ["a.txt"]
