@@ -4,6 +4,8 @@ import os
 import threading
 
 import pytest
+from hypothesis import example, given, settings
+from hypothesis import strategies as st
 
 from helpers import MINIMAL
 from lobeplan.cli import main
@@ -104,3 +106,73 @@ def test_an_avoid_region_clipped_differently_from_its_goal_is_allowed():
     text = MINIMAL.replace('region = "continent:Europe"',
                            'region = "continent:Europe"\nclip = [-10, 35, 20, 60]\navoid = ["continent:Europe"]')
     assert loads(text).goals[0].avoid == ("continent:Europe",)
+
+
+# --- any value at any key: a SiteError or a site, never another exception
+
+_KEYS = [("station", "name"), ("station", "lat"), ("station", "lon"), ("station", "locator"),
+         ("array", "height_m"), ("array", "radius_m"), ("array", "spacing_m"), ("array", "layout"),
+         ("array", "orientation_deg"), ("array", "orientation_step_deg"), ("array", "allowed_orientation_deg"),
+         ("array", "ground"), ("array", "ground_loss_ohm"), ("array", "elements"), ("array", "positions_m"),
+         ("feed", "velocity_factor"), ("feed", "z0_ohm"), ("band", "freq_mhz"), ("band", "name"),
+         ("band", "edges_mhz"), ("goal", "region"), ("goal", "weight"), ("goal", "clip"), ("goal", "avoid"),
+         ("goal", "bands"), ("goal", "path"), ("propagation", "hours_utc"), ("propagation", "points_per_goal"),
+         ("propagation", "seed"), ("propagation", "month"), ("propagation", "model"), ("state", "amplitude"),
+         ("state", "phase_deg"), ("state", "line_m")]
+
+_SCALARS = st.one_of(
+    st.integers(-10**30, 10**30), st.floats(allow_nan=True, allow_infinity=True),
+    st.sampled_from(["", "sweep", "circle:0,0,0", "sector:1,1,0,1", "country:", "file:", "continent:Atlantis",
+                     "circle:95,0,100", "both", "climatology", "A" * 300, "IN93zz", "sector:0,10,0,1e-9"]),
+    st.text(max_size=20), st.booleans())
+_VALUES = st.recursive(_SCALARS, lambda inner: st.lists(inner, max_size=5), max_leaves=12)
+
+
+def _toml_value(v) -> str:
+    import math
+
+    if isinstance(v, bool):
+        return "true" if v else "false"
+    if isinstance(v, float):
+        return "nan" if math.isnan(v) else ("inf" if v > 0 else "-inf") if math.isinf(v) else repr(v)
+    if isinstance(v, int):
+        return str(v)
+    if isinstance(v, str):
+        return json.dumps(v)
+    return "[" + ", ".join(_toml_value(x) for x in v) + "]"
+
+
+_BASE = {"station": {"lat": "45.0", "lon": "-93.0"},
+         "array": {"height_m": "10.0", "layout": '"pair"', "spacing_m": "10.5"},
+         "state": {"name": '"fwd"', "phase_deg": "[0, -90]"},
+         "feed": {"z0_ohm": "50"},
+         "band": {"name": '"40 m"', "freq_mhz": "7.1"},
+         "goal": {"region": '"continent:Europe"'},
+         "propagation": {"seed": "1"}}
+_HEADS = {"station": "[station]", "array": "[array]", "state": "[[array.state]]", "feed": "[feed]",
+          "band": "[[band]]", "goal": "[[goal]]", "propagation": "[propagation]"}
+
+
+def _with(section: str, key: str, value: str) -> str:
+    """The minimal site with ``key`` of ``section`` set to ``value`` (TOML text)."""
+    tables = {k: dict(v) for k, v in _BASE.items()}
+    tables[section][key] = value
+    if section == "state":  # line_m is the other form of a state
+        tables["state"].pop("phase_deg" if key == "line_m" else "line_m", None)
+    if (section, key) == ("station", "locator"):
+        tables["station"] = {"locator": value}
+    return "\n".join(_HEADS[name] + "\n" + "\n".join(f"{k} = {v}" for k, v in t.items())
+                     for name, t in tables.items()) + "\n"
+
+
+@settings(max_examples=150, deadline=None)
+@given(where=st.sampled_from(_KEYS), value=_VALUES)
+@example(where=("array", "height_m"), value=10**400)
+@example(where=("state", "amplitude"), value=[0, 1])
+@example(where=("band", "freq_mhz"), value=0.1)
+def test_any_value_at_any_key_is_a_site_or_a_site_error(where, value):
+    text = _with(*where, _toml_value(value))
+    try:
+        loads(text)
+    except SiteError as exc:
+        assert "\n" not in str(exc)
