@@ -170,7 +170,7 @@ class _Reader:
         return int(v) if integer else float(v)
 
     def string(self, t: dict, name: str, key: str, default: Any = _REQUIRED,
-               choices: tuple[str, ...] | None = None, max_len: int | None = None) -> Any:
+               choices: tuple[str, ...] | None = None) -> Any:
         k = _join(key, name)
         if name not in t:
             if default is _REQUIRED:
@@ -179,7 +179,7 @@ class _Reader:
         v = t[name]
         if not isinstance(v, str) or (not v.strip()):
             raise self.fail(k, f"{_show(v)} is not a non-empty string")
-        limit = max_len or (MAX_NAME_CHARS if name == "name" else MAX_TEXT_CHARS)
+        limit = MAX_NAME_CHARS if name == "name" else MAX_TEXT_CHARS
         if len(v) > limit:
             raise self.fail(k, f"is {len(v)} characters long; expected at most {limit}")
         if choices is not None and v not in choices:
@@ -222,6 +222,8 @@ def _show(v: Any) -> str:
         return "true" if v else "false"
     if isinstance(v, float) and not math.isfinite(v):
         return "nan" if math.isnan(v) else ("inf" if v > 0 else "-inf")
+    if isinstance(v, int) and abs(v) > 10**30:  # keep the message one readable line
+        return f"a {len(str(abs(v)))}-digit number"
     return repr(v)
 
 
