@@ -160,6 +160,10 @@ def _run(args: argparse.Namespace, mod: object, state: dict) -> int:
             discard_staging(staging)
             if is_output_fault(exc) and not isinstance(exc, LobeplanError):
                 raise OutputError(f"--out: {out_dir}: cannot write ({exc.strerror or exc})") from None
+            if isinstance(exc, OutputError) and str(staging.folder) in str(exc):
+                # name the file where the user will look for it, not the staging folder
+                where = Path(out_dir)
+                raise OutputError(str(exc).replace(str(staging.folder), str(where).rstrip("/") or "/")) from None
             raise
     sys.stdout.write(text if text.endswith("\n") else text + "\n")
     if done is not None:
