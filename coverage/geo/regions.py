@@ -353,7 +353,7 @@ def _polar_region(lon0: float, lat0: float, az_from: float, az_to: float,
     if span == 0.0:
         span = 360.0
     n_az = max(4, int(np.ceil(span / 10.0)))
-    n_d = max(1, int(np.ceil((dmax_km - dmin_km) / 1000.0)))
+    n_d = max(1, int(np.ceil((dmax_km - dmin_km) / 2000.0)))
     az_edges = az_from + np.linspace(0.0, span, n_az + 1)
     d_edges = np.linspace(dmin_km, dmax_km, n_d + 1)
     k = 24  # points per cell edge, so cell edges follow the geodesics
