@@ -224,7 +224,11 @@ def _read_manifest(out: Path) -> dict[str, str]:
     try:
         data = json.loads((out / MANIFEST).read_text(encoding="utf-8"))
         files = data.get("files", {})
-        return {str(k): str(v) for k, v in files.items()} if isinstance(files, dict) else {}
+        if not isinstance(files, dict):
+            return {}
+        # plain names in the folder only: an edited manifest must not reach elsewhere
+        return {str(k): str(v) for k, v in files.items()
+                if str(k) == Path(str(k)).name and str(k) not in ("", ".", "..") and "\\" not in str(k)}
     except (OSError, ValueError, AttributeError):
         return {}
 

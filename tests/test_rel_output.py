@@ -187,3 +187,14 @@ def test_an_out_folder_on_another_filesystem_is_staged_inside_it(tmp_path, monke
     done = fileio.commit_staging(staging, [staging.folder / "a.txt"], "paths")
     assert sorted(p.name for p in out.iterdir()) == [fileio.MANIFEST, "a.txt"]
     assert [p.name for p in done.written] == ["a.txt"]
+
+
+def test_an_edited_manifest_cannot_remove_files_elsewhere(write_site, tmp_path, capsys):
+    out = tmp_path / "res"
+    out.mkdir()
+    victim = tmp_path / "keep.txt"
+    victim.write_text("mine")
+    (out / fileio.MANIFEST).write_text(json.dumps({"files": {"../keep.txt": "paths", str(victim): "paths"}}))
+    assert main(["paths", str(write_site(MINIMAL)), "--out", str(out)]) == 0
+    assert victim.read_text() == "mine"
+    assert json.loads((out / fileio.MANIFEST).read_text())["files"] == {"paths.json": "paths"}
