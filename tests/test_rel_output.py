@@ -164,7 +164,9 @@ def test_a_signal_while_writing_leaves_nothing(write_site, tmp_path, sig, code, 
     out = tmp_path / "res"
     proc = subprocess.Popen([sys.executable, "-m", "lobeplan", "plan", str(site), "--out", str(out)],
                             stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, cwd=tmp_path,
-                            env={**os.environ, "MPLBACKEND": "Agg"})
+                            env={**os.environ, "MPLBACKEND": "Agg"},
+                            # a shell's background job starts with SIGINT ignored; a user's terminal does not
+                            preexec_fn=lambda: signal.signal(signal.SIGINT, signal.SIG_DFL))
     deadline = time.monotonic() + 60
     while not _leftovers(tmp_path) and proc.poll() is None and time.monotonic() < deadline:
         time.sleep(0.02)
