@@ -92,3 +92,4 @@ def test_fixed_and_flat_windows_read_as_such(write_site, capsys):
         '[[array.state]]\nname = "fwd"\nphase_deg = [0, -90]\n', "") + "[propagation]\npoints_per_goal = 30\n"
     out = _plan_text(write_site, capsys, single)
     assert "every bearing (the score is flat)" in out
+    assert "so the order of its bearings means little" in out.split("Per goal")[0]

@@ -113,6 +113,11 @@ def format_text(result: dict) -> str:
         out.append(f"  {i:>2}  {e['option'][:24]:<24} {e['orientation_deg']:>7.1f}° {_f(e['score_db'], '+7.2f')}")
     if not result["ranking"]:
         out.append("  (no allowed bearing serves an open goal)")
+    flat = [c["option"] for c in result["spacing_comparison"]
+            if c.get("swept", True) and c.get("within_1db_every_bearing")]
+    if result["ranking"] and flat:
+        out.append(f"  ({', '.join(flat)}: every allowed bearing is within 1 dB of the best, so the order "
+                   "of its bearings means little)")
     out += [f"  {line}" for line in score_definition(avoid)]
     if result["ranking"]:
         best = result["ranking"][0]
