@@ -149,3 +149,37 @@ def test_paths_says_when_a_region_has_fewer_points(write_site, capsys):
     assert main(["paths", str(p), "--json"]) == 0
     data = __import__("json").loads(capsys.readouterr().out)
     assert data["goals"][0]["points"] == 1 and data["points_per_goal"] == 500
+
+
+_SIZES_KM = st.one_of(st.floats(0.001, 2.0), st.floats(2.0, 19999.0))
+
+
+@settings(max_examples=40, deadline=None)
+@given(kind=st.sampled_from(["circle", "sector"]), lat=st.floats(-89.9, 89.9), lon=st.floats(-180, 180),
+       a=st.floats(0, 359), span=st.floats(0.01, 360), d0=st.floats(0, 19000), size=_SIZES_KM,
+       clip=st.none() | st.tuples(st.floats(-180, 180), st.floats(-90, 89), st.floats(0.0001, 60),
+                                  st.floats(0.0001, 60)))
+@example(kind="circle", lat=48.0, lon=11.0, a=0, span=1, d0=0, size=0.01, clip=None)
+@example(kind="circle", lat=0.0, lon=0.0, a=0, span=1, d0=0, size=1000.0, clip=(0.0, 0.0, 0.0001, 0.0001))
+def test_any_circle_or_sector_with_any_clip_resolves_or_is_refused(kind, lat, lon, a, span, d0, size, clip):
+    # a region of any size, clipped or not, gives in-region points or one clear RegionError
+    if kind == "circle":
+        text = f"circle:{lat},{lon},{min(size, 19999.0)}"
+    else:
+        text = f"sector:{a},{(a + span) % 360},{min(d0, 20037.0)},{min(min(d0, 20037.0) + size, 20038.0)}"
+    box = None
+    if clip is not None:
+        west, south, width, height = clip
+        box = (west, south, (west + width + 180.0) % 360.0 - 180.0, min(south + height, 90.0))
+    try:
+        area = R.resolve(R.parse_region(text), Station("", 48.0, 11.0, ""), clip=box)
+    except R.RegionError as exc:
+        assert "\n" not in str(exc)
+        return
+    lons, lats = R.sample_points(area, 100)
+    assert 1 <= lons.size <= 100
+    assert np.all(np.abs(lons) <= 180.0) and np.all(np.abs(lats) <= 90.0)
+    if lons.size > 1:  # drawn points pass the exact test (one point may be a representative point)
+        assert area.disc.contains(lons, lats).all()
+        if box is not None:
+            assert R._in_clip(box, lons, lats).all()
