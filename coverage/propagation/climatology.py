@@ -85,6 +85,11 @@ class Ionosphere:
     fof2_mhz, hmf2_km, m3000f2, foe_mhz, solar_zenith_deg : ndarray
         F2 critical frequency (MHz), F2 peak height (km), M(3000)F2 factor,
         E critical frequency (MHz), solar zenith angle (deg) on day 15.
+    gyrofrequency_mhz : ndarray
+        Electron gyrofrequency at 300 km from the IGRF total field,
+        fH = e B / (2 pi m_e) (MHz).
+    dip_latitude_deg : ndarray
+        Magnetic dip latitude, atan(tan(I) / 2) (deg).
     """
 
     hours_utc: np.ndarray
@@ -93,6 +98,12 @@ class Ionosphere:
     m3000f2: np.ndarray
     foe_mhz: np.ndarray
     solar_zenith_deg: np.ndarray
+    gyrofrequency_mhz: np.ndarray
+    dip_latitude_deg: np.ndarray
+
+
+# e / (2 pi m_e) in MHz per nT (CODATA e and m_e: 27.992 GHz/T)
+_GYRO_MHZ_PER_NT = 27.992e-6
 
 
 def _r12_to_f107(r12: float) -> float:
@@ -183,8 +194,8 @@ def ionosphere(year: int, month: int, hours_utc, lons_deg, lats_deg, solar_flux_
     alat = np.atleast_1d(np.asarray(lats_deg, dtype=float))
     aig = np.array([0.0, 100.0])  # PyIRI's two map levels, IG12 0 and 100
 
-    inc = igrf.inclination(PyIRI.coeff_dir, ml.decimal_year(dt.datetime(year, month, 15)),
-                           alon, alat, 300.0, only_inc=True)
+    inc, *_, total_nt = igrf.inclination(PyIRI.coeff_dir, ml.decimal_year(dt.datetime(year, month, 15)),
+                                         alon, alat, 300.0, only_inc=False)
     modip = igrf.inc2modip(inc, alat)
     d_fof2, d_m3000, d_es = ml.diurnal_functions(aut)
     g_fof2, g_m3000, g_es = ml.set_gl_G(alon, alat, modip)
@@ -202,6 +213,10 @@ def ionosphere(year: int, month: int, hours_utc, lons_deg, lats_deg, solar_flux_
         m3000f2=f2["M3000"],
         foe_mhz=np.clip(e["fo"], 0.0, None),
         solar_zenith_deg=e["solzen"],
+        gyrofrequency_mhz=np.broadcast_to(_GYRO_MHZ_PER_NT * np.asarray(total_nt, dtype=float),
+                                          (aut.size, alon.size)),
+        dip_latitude_deg=np.broadcast_to(np.degrees(np.arctan(0.5 * np.tan(np.radians(inc)))),
+                                         (aut.size, alon.size)),
     )
 
 
