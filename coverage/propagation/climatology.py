@@ -38,6 +38,7 @@ __all__ = [
     "Ionosphere",
     "solar_input",
     "ionosphere",
+    "ionosphere_months",
     "solar_zenith_deg",
 ]
 
@@ -156,6 +157,17 @@ def _coefficients(month: int, fof2_maps: str):
     return (np.asarray(fof2, dtype=float), np.asarray(m3000, dtype=float), np.asarray(es, dtype=float))
 
 
+def _maps(diurnal: np.ndarray, coeff: np.ndarray, geographic: np.ndarray) -> np.ndarray:
+    """PyIRI's ``gamma`` for one quantity: D @ C[:, :, level] @ G for both solar levels.
+
+    The products are small (24 x 13 x 76 x n points); einsum keeps them
+    off the BLAS thread pool, which on a busy two-core machine made PyIRI's
+    own matmul ten times slower than a plain loop.
+    """
+    first = np.einsum("tj,jkl->tkl", diurnal, coeff)
+    return np.einsum("tkl,kn->tnl", first, geographic)
+
+
 def ionosphere(year: int, month: int, hours_utc, lons_deg, lats_deg, solar_flux_sfu: float,
                fof2_maps: str = "ccir") -> Ionosphere:
     """Monthly-median foF2, hmF2, M(3000)F2, foE at all points and hours at once.
@@ -181,6 +193,33 @@ def ionosphere(year: int, month: int, hours_utc, lons_deg, lats_deg, solar_flux_
     ----------
     Forsythe et al. (2023); Bilitza et al. (2022); ITU-R P.1239.
     """
+    return ionosphere_months(year, (month,), hours_utc, lons_deg, lats_deg, (solar_flux_sfu,), fof2_maps)[0]
+
+
+def ionosphere_months(year: int, months, hours_utc, lons_deg, lats_deg, solar_flux_sfu,
+                      fof2_maps: str = "ccir") -> tuple[Ionosphere, ...]:
+    """:func:`ionosphere` for several months of one year, each with its own solar input.
+
+    The month-independent parts (the magnetic field, modified dip latitude
+    and the maps' geographic and diurnal basis functions) are evaluated
+    once, for the first month's date: the field's secular change over a
+    year moves the dip by well under a tenth of a degree (common practice).
+
+    Parameters
+    ----------
+    year : int
+    months : sequence of int
+    hours_utc, lons_deg, lats_deg : array_like
+        As in :func:`ionosphere`.
+    solar_flux_sfu : sequence of float
+        One F10.7 per month.
+    fof2_maps : {"ccir", "ursi"}
+
+    Returns
+    -------
+    tuple of Ionosphere
+        One per month, in order.
+    """
     import datetime as dt
 
     import PyIRI
@@ -189,35 +228,40 @@ def ionosphere(year: int, month: int, hours_utc, lons_deg, lats_deg, solar_flux_
 
     if fof2_maps not in ("ccir", "ursi"):
         raise ValueError(f"fof2_maps: expected 'ccir' or 'ursi', not {fof2_maps!r}")
+    months = tuple(int(m) for m in months)
     aut = np.atleast_1d(np.asarray(hours_utc, dtype=float))
     alon = np.atleast_1d(np.asarray(lons_deg, dtype=float))
     alat = np.atleast_1d(np.asarray(lats_deg, dtype=float))
     aig = np.array([0.0, 100.0])  # PyIRI's two map levels, IG12 0 and 100
 
-    inc, *_, total_nt = igrf.inclination(PyIRI.coeff_dir, ml.decimal_year(dt.datetime(year, month, 15)),
+    inc, *_, total_nt = igrf.inclination(PyIRI.coeff_dir, ml.decimal_year(dt.datetime(year, months[0], 15)),
                                          alon, alat, 300.0, only_inc=False)
     modip = igrf.inc2modip(inc, alat)
     d_fof2, d_m3000, d_es = ml.diurnal_functions(aut)
     g_fof2, g_m3000, g_es = ml.set_gl_G(alon, alat, modip)
-    c_fof2, c_m3000, c_es = _coefficients(int(month), fof2_maps)
-    fof2, m3000, _ = ml.gamma(d_fof2, d_m3000, d_es, g_fof2, g_m3000, g_es, c_fof2, c_m3000, c_es)
-    foe, solzen, _, _, _ = ml.gammaE(year, month, aut, alon, alat, aig)
-    hmf2, _, _ = ml.hm_IRI(m3000, foe, fof2, modip, aig)
-
-    f2 = ml.solar_interpolation_of_dictionary({"fo": fof2, "M3000": m3000, "hm": hmf2}, solar_flux_sfu)
-    e = ml.solar_interpolation_of_dictionary({"fo": foe, "solzen": solzen}, solar_flux_sfu)
-    return Ionosphere(
-        hours_utc=aut,
-        fof2_mhz=np.clip(f2["fo"], 0.0, None),
-        hmf2_km=f2["hm"],
-        m3000f2=f2["M3000"],
-        foe_mhz=np.clip(e["fo"], 0.0, None),
-        solar_zenith_deg=e["solzen"],
-        gyrofrequency_mhz=np.broadcast_to(_GYRO_MHZ_PER_NT * np.asarray(total_nt, dtype=float),
-                                          (aut.size, alon.size)),
-        dip_latitude_deg=np.broadcast_to(np.degrees(np.arctan(0.5 * np.tan(np.radians(inc)))),
-                                         (aut.size, alon.size)),
-    )
+    shape = (aut.size, alon.size)
+    gyro = np.broadcast_to(_GYRO_MHZ_PER_NT * np.asarray(total_nt, dtype=float), shape)
+    dip = np.broadcast_to(np.degrees(np.arctan(0.5 * np.tan(np.radians(inc)))), shape)
+    out = []
+    for month, flux in zip(months, solar_flux_sfu):
+        c_fof2, c_m3000, c_es = _coefficients(month, fof2_maps)
+        fof2 = _maps(d_fof2, c_fof2, g_fof2)
+        m3000 = _maps(d_m3000, c_m3000, g_m3000)
+        foe, solzen, _, _, _ = ml.gammaE(year, month, aut, alon, alat, aig)
+        hmf2, _, _ = ml.hm_IRI(m3000, foe, fof2, modip, aig)
+        f2 = ml.solar_interpolation_of_dictionary({"fo": fof2, "M3000": m3000, "hm": hmf2}, float(flux))
+        e = ml.solar_interpolation_of_dictionary({"fo": foe, "solzen": solzen}, float(flux))
+        out.append(Ionosphere(
+            hours_utc=aut,
+            fof2_mhz=np.clip(f2["fo"], 0.0, None),
+            hmf2_km=f2["hm"],
+            m3000f2=f2["M3000"],
+            foe_mhz=np.clip(e["fo"], 0.0, None),
+            solar_zenith_deg=e["solzen"],
+            gyrofrequency_mhz=gyro,
+            dip_latitude_deg=dip,
+        ))
+    return tuple(out)
 
 
 def solar_zenith_deg(year: int, month: int, hours_utc, lons_deg, lats_deg) -> np.ndarray:

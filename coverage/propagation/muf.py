@@ -131,8 +131,12 @@ def p1240_dmax_km(fof2_mhz, foe_mhz, m3000f2):
     ITU-R P.1240, the F2-layer basic MUF (constants from memory).
     """
     x = _p1240_x(fof2_mhz, foe_mhz)
-    b = _p1240_b(m3000f2, x)
-    d = 4780.0 + (12610.0 + 2140.0 / x**2 - 49720.0 / x**4 + 688900.0 / x**6) * (1.0 / b - 0.303)
+    return _p1240_dmax(x, _p1240_b(m3000f2, x))
+
+
+def _p1240_dmax(x, b):
+    u = 1.0 / (x * x)
+    d = 4780.0 + (12610.0 + u * (2140.0 + u * (-49720.0 + u * 688900.0))) * (1.0 / b - 0.303)
     return np.clip(d, 1000.0, P1240_DMAX_LIMIT_KM)
 
 
@@ -149,8 +153,11 @@ def _p1240_b(m3000f2, x):
 
 def _p1240_c(hop_km, dmax_km):
     z = 1.0 - 2.0 * np.asarray(hop_km, dtype=float) / dmax_km
-    return (0.74 - 0.591 * z - 0.424 * z**2 - 0.090 * z**3 + 0.088 * z**4 + 0.181 * z**5
-            + 0.096 * z**6)
+    # 0.74 - 0.591 z - 0.424 z^2 - 0.090 z^3 + 0.088 z^4 + 0.181 z^5 + 0.096 z^6, by Horner
+    c = 0.096
+    for a in (0.181, 0.088, -0.090, -0.424, -0.591, 0.74):
+        c = c * z + a
+    return c
 
 
 def p1240_f2_muf(fof2_mhz, foe_mhz, m3000f2, hop_km, gyrofrequency_mhz):
@@ -183,7 +190,7 @@ def p1240_f2_muf(fof2_mhz, foe_mhz, m3000f2, hop_km, gyrofrequency_mhz):
     fo = np.asarray(fof2_mhz, dtype=float)
     x = _p1240_x(fo, foe_mhz)
     b = _p1240_b(m3000f2, x)
-    dmax = p1240_dmax_km(fo, foe_mhz, m3000f2)
+    dmax = _p1240_dmax(x, b)
     d = np.minimum(np.asarray(hop_km, dtype=float), dmax)
     ratio = _p1240_c(d, dmax) / _p1240_c(3000.0, dmax)
     fh = np.asarray(gyrofrequency_mhz, dtype=float)

@@ -270,6 +270,13 @@ def prepare_goal(settings: PropagationSettings, station_lon_deg: float, station_
     ----------
     ITU-R P.533 (control points); Forsythe et al. (2023) (PyIRI).
     """
+    return _prepare(settings, (int(settings.month),), station_lon_deg, station_lat_deg, lons_deg, lats_deg,
+                    bearing_deg, distance_km, path, progress)[0]
+
+
+def _prepare(settings: PropagationSettings, months: tuple[int, ...], station_lon_deg: float,
+             station_lat_deg: float, lons_deg, lats_deg, bearing_deg, distance_km, path: str,
+             progress: Progress | None) -> tuple[GoalGeometry, ...]:
     _check(settings, path)
     lons = np.asarray(lons_deg, dtype=float).ravel()
     lats = np.asarray(lats_deg, dtype=float).ravel()
@@ -277,7 +284,8 @@ def prepare_goal(settings: PropagationSettings, station_lon_deg: float, station_
     dist = np.asarray(distance_km, dtype=float).ravel()
     if not lons.size == lats.size == bearing.size == dist.size:
         raise ValueError("prepare_goal: lons_deg, lats_deg, bearing_deg and distance_km differ in length")
-    total = 3 if settings.model == "climatology" else 1
+    clim_model = settings.model == "climatology"
+    total = 2 + len(months) if clim_model else 1
     if progress is not None:
         progress(0, total)
 
@@ -291,15 +299,33 @@ def prepare_goal(settings: PropagationSettings, station_lon_deg: float, station_
         progress(1, total)
 
     hours = tuple(settings.hours)
-    iono = None
-    solar = None
-    hop_zenith = None
-    if settings.model == "climatology":
-        solar = clim.solar_input(settings.solar_flux, settings.sunspot_number)
-        ut = np.asarray(hours, dtype=float) + 0.5
-        raw = clim.ionosphere(settings.year, settings.month, ut, cp_lon.ravel(), cp_lat.ravel(),
-                              solar.flux_sfu, settings.fof2_maps)
-        shape = (len(hours), lons.size, 2)
+    common = dict(model=settings.model, path=path,
+                  station_lon_deg=float(station_lon_deg), station_lat_deg=float(station_lat_deg),
+                  lons_deg=_frozen(lons), lats_deg=_frozen(lats), bearing_deg=_frozen(bearing),
+                  distance_km=_frozen(dist), hours_utc=hours,
+                  control_lons_deg=_frozen(cp_lon), control_lats_deg=_frozen(cp_lat), year=int(settings.year))
+    if not clim_model:
+        table = _geometry_table(dist, len(hours), settings)
+        return tuple(GoalGeometry(**common, ionosphere=None, hop_zenith_deg=None, solar=None, month=int(m),
+                                  modes=table) for m in months)
+
+    per_month = [settings.for_month(m) for m in months]
+    solars = [clim.solar_input(s.solar_flux, s.sunspot_number) for s in per_month]
+    ut = np.asarray(hours, dtype=float) + 0.5
+    raws = clim.ionosphere_months(settings.year, months, ut, cp_lon.ravel(), cp_lat.ravel(),
+                                  [s.flux_sfu for s in solars], settings.fof2_maps)
+    if progress is not None:
+        progress(2, total)
+    # the absorption estimate looks at every hop, not only the two control
+    # points (beyond 4000 km those are the first and last hop midpoints, so
+    # the sets agree there)
+    k = int(n0.max()) if n0.size else 1
+    valid = np.arange(k)[None, :] < n0[:, None]
+    along_hops = np.where(valid, (np.arange(k)[None, :] + 0.5) * hop_km[:, None], 0.0)
+    hop_lon, hop_lat = control_points(station_lon_deg, station_lat_deg, bearing, along_hops)
+    shape = (len(hours), lons.size, 2)
+    out = []
+    for i, (m, solar, raw) in enumerate(zip(months, solars, raws)):
         iono = clim.Ionosphere(
             hours_utc=_frozen(ut),
             fof2_mhz=_frozen(raw.fof2_mhz.reshape(shape)),
@@ -310,32 +336,15 @@ def prepare_goal(settings: PropagationSettings, station_lon_deg: float, station_
             gyrofrequency_mhz=_frozen(raw.gyrofrequency_mhz.reshape(shape)),
             dip_latitude_deg=_frozen(raw.dip_latitude_deg.reshape(shape)),
         )
-        if progress is not None:
-            progress(2, total)
-        # the absorption estimate looks at every hop, not only the two
-        # control points (beyond 4000 km those are the first and last hop
-        # midpoints, so the sets agree there)
-        k = int(n0.max()) if n0.size else 1
-        valid = np.arange(k)[None, :] < n0[:, None]
-        along_hops = np.where(valid, (np.arange(k)[None, :] + 0.5) * hop_km[:, None], 0.0)
-        hop_lon, hop_lat = control_points(station_lon_deg, station_lat_deg, bearing, along_hops)
-        chi = clim.solar_zenith_deg(settings.year, settings.month, ut, hop_lon.ravel(), hop_lat.ravel())
+        chi = clim.solar_zenith_deg(settings.year, m, ut, hop_lon.ravel(), hop_lat.ravel())
         chi = chi.reshape(len(hours), lons.size, k)
         hop_zenith = _frozen(np.where(valid[None, :, :], chi, np.nan))
-        table = _climatology_table(dist, iono, hop_zenith, solar.sunspot_number, settings)
+        table = _climatology_table(dist, iono, hop_zenith, solar.sunspot_number, per_month[i])
+        out.append(GoalGeometry(**common, ionosphere=iono, hop_zenith_deg=hop_zenith, solar=solar,
+                                month=int(m), modes=table))
         if progress is not None:
-            progress(3, total)
-    else:
-        table = _geometry_table(dist, len(hours), settings)
-    return GoalGeometry(
-        model=settings.model, path=path,
-        station_lon_deg=float(station_lon_deg), station_lat_deg=float(station_lat_deg),
-        lons_deg=_frozen(lons), lats_deg=_frozen(lats), bearing_deg=_frozen(bearing),
-        distance_km=_frozen(dist), hours_utc=hours,
-        control_lons_deg=_frozen(cp_lon), control_lats_deg=_frozen(cp_lat),
-        ionosphere=iono, hop_zenith_deg=hop_zenith, solar=solar, year=int(settings.year), month=int(settings.month),
-        modes=table,
-    )
+            progress(3 + i, total)
+    return tuple(out)
 
 
 def _weighted_quantiles(values: np.ndarray, weights: np.ndarray, qs) -> list[float]:
@@ -529,16 +538,8 @@ def prepare_goal_months(settings: PropagationSettings, station_lon_deg: float, s
     tuple of GoalGeometry
         One per month, in the order of ``settings.month_list``.
     """
-    months = settings.month_list
-    out = []
-    for i, m in enumerate(months):
-        inner = None
-        if progress is not None:
-            def inner(done: int, total: int, i=i) -> None:
-                progress(i * 3 + 3 * (done / total if total else 1.0), 3 * len(months))
-        out.append(prepare_goal(settings.for_month(m), station_lon_deg, station_lat_deg, lons_deg, lats_deg,
-                                bearing_deg, distance_km, path, progress=inner))
-    return tuple(out)
+    return _prepare(settings, settings.month_list, station_lon_deg, station_lat_deg, lons_deg, lats_deg,
+                    bearing_deg, distance_km, path, progress)
 
 
 def band_needs(goal_geometry: GoalGeometry | tuple[GoalGeometry, ...], freq_hz: float,
