@@ -32,8 +32,22 @@ def build_from_goal_bands(site, rows, caveats) -> dict:
             "modes": [{"layer": m.layer, "hops": m.hops, "share": round(m.share, 4),
                        "elevation_deg": round(m.elevation_deg, 1)} for m in n.modes],
             "open_hours_utc": list(n.open_hours_utc),
+            "by_month": _by_month(n),
         })
     return {"model": site.propagation.model, "needs": needs, "caveats": list(caveats)}
+
+
+def _by_month(n) -> list[dict]:
+    """Per month, the open share of each UT hour 0..23 (None for an hour not modelled)."""
+    if n.open_share_by_slot is None:
+        return []
+    out = []
+    for mi, month in enumerate(n.months):
+        hours = [None] * 24
+        for hi, h in enumerate(n.hours_utc):
+            hours[h] = round(float(n.open_share_by_slot[mi, hi]), 4)
+        out.append({"month": int(month), "open_share_by_hour": hours})
+    return out
 
 
 def _hour_ranges(hours: list[int]) -> str:

@@ -55,6 +55,7 @@ def _goal_row(g) -> dict:
 
 def build_from_plan(site, plan) -> dict:
     from ..plan.planner import goal_rows
+    from .schedule import schedule_of, schedule_options, schedule_rows
 
     ranking = [{"option": e.option, "orientation_deg": _r(e.orientation_deg, 1), "spacing_m": _r(e.spacing_m, 3),
                 "layout": e.layout, "score_db": _r(e.score_db, 2),
@@ -82,6 +83,9 @@ def build_from_plan(site, plan) -> dict:
         "ranking": ranking,
         "spacing_comparison": comparison,
         "orientation_scores": scores,
+        "months": list(site.propagation.month_list),
+        "schedule_options": schedule_options(plan),
+        "schedule": schedule_rows(schedule_of(site, plan)),
         "caveats": list(plan.caveats) + list(height_caveats(site)),
         "cautions": list(CAUTIONS),
     }
@@ -159,4 +163,7 @@ def write_files(site, args, result, out_dir) -> list[Path]:
     out = Path(out_dir)
     written = [atomic_write_json(out / "plan.json", result), atomic_write_text(out / "plan.csv", _csv(result))]
     plan = run_plan(site, bool(getattr(args, "json", False)))
+    from .schedule import schedule_of, write_schedule_files
+
+    written += write_schedule_files(site, plan, schedule_of(site, plan), result, args, out)
     return written + write_plan_figures(site, plan, args, out)
