@@ -347,10 +347,8 @@ def _prepare(settings: PropagationSettings, months: tuple[int, ...], station_lon
     return tuple(out)
 
 
-def _weighted_quantiles(values: np.ndarray, weights: np.ndarray, qs) -> list[float]:
-    order = np.argsort(values, kind="stable")
-    v = values[order]
-    w = weights[order]
+def _sorted_quantiles(v: np.ndarray, w: np.ndarray, qs) -> list[float]:
+    """Weighted quantiles of values already sorted ascending (midpoint rule)."""
     cum = np.cumsum(w) - 0.5 * w
     return [float(np.interp(q, cum / w.sum(), v)) for q in qs]
 
@@ -613,18 +611,21 @@ def band_needs(goal_geometry: GoalGeometry | tuple[GoalGeometry, ...], freq_hz: 
     p10 = med = p90 = None
     mode_list: list[ModeShare] = []
     if live.any():
-        wl = wl_slot
-        el_l = el[live]
-        p10, med, p90 = _weighted_quantiles(el_l, wl, (0.1, 0.5, 0.9))
-        layer_idx = np.broadcast_to(np.arange(n_modes), w_slot.shape)[live]
+        # one sort of the takeoff angles serves every quantile: a subset of
+        # a sorted array stays sorted
+        order = np.argsort(el[live], kind="stable")
+        el_l = el[live][order]
+        wl = wl_slot[order]
+        p10, med, p90 = _sorted_quantiles(el_l, wl, (0.1, 0.5, 0.9))
+        layer_idx = np.broadcast_to(np.arange(n_modes), w_slot.shape)[live][order]
         layer_name = np.array(layers)[layer_idx]
-        hop_l = hops[live]
+        hop_l = hops[live][order]
         total = wl.sum()
         for layer in ("F2", "E"):
             for n in np.unique(hop_l[layer_name == layer]):
                 sel = (layer_name == layer) & (hop_l == n)
                 mode_list.append(ModeShare(layer, int(n), float(wl[sel].sum() / total),
-                                           _weighted_quantiles(el_l[sel], wl[sel], (0.5,))[0]))
+                                           _sorted_quantiles(el_l[sel], wl[sel], (0.5,))[0]))
         mode_list.sort(key=lambda m: (-m.share, m.layer, m.hops))
 
     return Needs(
