@@ -67,8 +67,10 @@ def schedule_figure(site, plan, schedule, band: str):
     names = schedule.state_names[op.option]
     grid = _grid(schedule, op.option, band)
     months, hours = list(schedule.months), list(schedule.hours_utc)
-    fig, ax = plt.subplots(figsize=(10.0, 1.9 + 0.42 * len(months)))
-    fig.subplots_adjust(left=0.08, right=0.72, top=0.86, bottom=0.12 + 0.02 * (12 - len(months)) / 12)
+    # margins in inches, so one month and twelve lay out alike
+    h_in = 2.3 + 0.42 * max(len(months), 4)
+    fig, ax = plt.subplots(figsize=(10.0, h_in))
+    fig.subplots_adjust(left=0.08, right=0.72, top=1 - 0.95 / h_in, bottom=0.85 / h_in)
     for si, name in enumerate(names):
         ys, xs = np.nonzero(grid == si)
         for y, x in zip(ys, xs):
@@ -103,12 +105,12 @@ def schedule_figure(site, plan, schedule, band: str):
                 markeredgecolor="white", markeredgewidth=0.7, gid=f"sun:{name}:set")
         handles.append(h1)
     ax.legend(handles=handles, loc="upper left", bbox_to_anchor=(1.02, 1.0), fontsize=7.5, frameon=False)
-    fig.text(0.08, 0.95, f"{site.station.name}: {band}, switch state by UT hour and month", fontsize=11,
+    fig.text(0.08, 1 - 0.35 / h_in, f"{site.station.name}: {band}, switch state by UT hour and month", fontsize=11,
              fontweight="bold", color=INK)
-    fig.text(0.08, 0.905, f"{op.option}, baseline along {theta:.1f}\u00b0; the state with the best score over "
+    fig.text(0.08, 1 - 0.6 / h_in, f"{op.option}, baseline along {theta:.1f}\u00b0; the state with the best score over "
              f"the goals open in each hour; blank: no goal open on {100 * schedule.closed_share:.0f} % of its points",
              fontsize=7.5, color=INK)
-    fig.text(0.08, 0.02, "Sunrise and sunset on the 15th of each month at the station and at each goal's "
+    fig.text(0.08, 0.15 / h_in, "Sunrise and sunset on the 15th of each month at the station and at each goal's "
              "centre (mean of its sampled points).", fontsize=7, color=INK)
     return fig
 
