@@ -3,7 +3,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, replace
 
-__all__ = ["PropagationSettings"]
+__all__ = ["PropagationSettings", "hour_ranges_text"]
 
 
 @dataclass(frozen=True, slots=True)
@@ -72,3 +72,26 @@ class PropagationSettings:
                 end += 24
             out.update(h % 24 for h in range(start, end))
         return tuple(sorted(out))
+
+
+def hour_ranges_text(hours, sep: str = ", ") -> str:
+    """UT hours as [start-end) runs, e.g. "20-02, 13-18"; "all day" for all 24, "" for none.
+
+    A run ending at 23 and one starting at 0 are one run across midnight.
+    """
+    hs = sorted(set(int(h) for h in hours))
+    if not hs:
+        return ""
+    if len(hs) == 24:
+        return "all day"
+    runs = []
+    start = prev = hs[0]
+    for h in hs[1:]:
+        if h != prev + 1:
+            runs.append((start, prev))
+            start = h
+        prev = h
+    runs.append((start, prev))
+    if len(runs) > 1 and runs[0][0] == 0 and runs[-1][1] == 23:
+        runs = [(runs[-1][0], runs[0][1])] + runs[1:-1]
+    return sep.join(f"{a:02d}-{b + 1:02d}" for a, b in runs)

@@ -62,7 +62,7 @@ import numpy as np
 from ..grid import N_AZIMUTH, N_ELEVATION
 from . import climatology as clim
 from .hops import EARTH_RADIUS_KM, elevation_deg, incidence_secant, min_hops, path_modes
-from .model import PropagationSettings
+from .model import PropagationSettings, hour_ranges_text
 from .muf import (ABSORPTION_HEIGHT_KM, E_DECILE_FACTORS, absorption_db, absorption_index,
                   control_point_distances_km, control_points, f2_decile_factors, open_probability,
                   p1240_dmax_km, p1240_f2_muf, secant_law_muf)
@@ -485,7 +485,7 @@ def _month_text(geos: tuple[GoalGeometry, ...]) -> str:
 
 def _caveats(geos: tuple[GoalGeometry, ...], settings: PropagationSettings) -> tuple[str, ...]:
     geo = geos[0]
-    hours = _hours_text(geo.hours_utc)
+    hours = hour_ranges_text(geo.hours_utc)
     if geo.model == "geometry":
         return (
             "No ionosphere was consulted: fixed reflection heights "
@@ -510,20 +510,6 @@ def _caveats(geos: tuple[GoalGeometry, ...], settings: PropagationSettings) -> t
         out.append(f"Solar input {s.requested_sfu:.0f} sfu was clamped to {s.flux_sfu:.0f} sfu: the maps "
                    f"are used only within {lo:.0f}..{hi:.0f} sfu (sunspot number 0..150).")
     return tuple(out)
-
-
-def _hours_text(hours: tuple[int, ...]) -> str:
-    if len(hours) == 24:
-        return "all 24"
-    hs = sorted(hours)
-    runs, start, prev = [], hs[0], hs[0]
-    for h in hs[1:]:
-        if h != prev + 1:
-            runs.append((start, prev))
-            start = h
-        prev = h
-    runs.append((start, prev))
-    return ", ".join(f"{a:02d}-{b + 1:02d}" for a, b in runs)
 
 
 def prepare_goal_months(settings: PropagationSettings, station_lon_deg: float, station_lat_deg: float,

@@ -206,17 +206,10 @@ _MONTH_NAMES = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "
 
 
 def _hours_text(hours: tuple[int, ...]) -> str:
-    if len(hours) == 24:
-        return "all UT hours"
-    hs = sorted(hours)
-    runs, start, prev = [], hs[0], hs[0]
-    for h in hs[1:]:
-        if h != prev + 1:
-            runs.append((start, prev))
-            start = h
-        prev = h
-    runs.append((start, prev))
-    return "UT " + ", ".join(f"{a:02d}-{b + 1:02d}" for a, b in runs)
+    from ..propagation.model import hour_ranges_text
+
+    text = hour_ranges_text(hours)
+    return "all UT hours" if text == "all day" else f"UT {text}"
 
 
 def propagation_text(site) -> str:

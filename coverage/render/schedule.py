@@ -15,6 +15,7 @@ from pathlib import Path
 
 import numpy as np
 
+from ..propagation.model import hour_ranges_text
 from .azimap import INK, STATE_COLOURS
 from .panels import NEED_COLOURS, _pyplot, _save
 from .scene import chosen_option, slug
@@ -115,22 +116,6 @@ def schedule_figure(site, plan, schedule, band: str):
     return fig
 
 
-def _ranges(hours: list[int]) -> str:
-    if len(hours) == 24:
-        return "all day"
-    hs = sorted(hours)
-    runs, start, prev = [], hs[0], hs[0]
-    for h in hs[1:]:
-        if h != prev + 1:
-            runs.append((start, prev))
-            start = h
-        prev = h
-    runs.append((start, prev))
-    if len(runs) > 1 and runs[0][0] == 0 and runs[-1][1] == 23:
-        runs = [(runs[-1][0], runs[0][1])] + runs[1:-1]
-    return ", ".join(f"{a:02d}-{(b + 1) % 24:02d}" for a, b in runs)
-
-
 def card_entries(schedule, option: str) -> dict:
     """(goal label, band) -> list of (state, "hh-hh, ..." UT) for the switch card.
 
@@ -155,7 +140,7 @@ def card_entries(schedule, option: str) -> dict:
                 continue
             s = int(np.bincount(open_months).argmax())
             per_state.setdefault(s, []).append(h)
-        entries = sorted(((names[s], _ranges(hs)) for s, hs in per_state.items()),
+        entries = sorted(((names[s], hour_ranges_text(hs)) for s, hs in per_state.items()),
                          key=lambda e: -len(per_state[names.index(e[0])]))
         out[(goal_label(t.goal, t.path), t.band)] = entries
     return out

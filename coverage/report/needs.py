@@ -51,23 +51,9 @@ def _by_month(n) -> list[dict]:
 
 
 def _hour_ranges(hours: list[int]) -> str:
-    if not hours:
-        return "-"
-    if len(hours) == 24:
-        return "all day"
-    hs = sorted(hours)
-    runs = []
-    start = prev = hs[0]
-    for h in hs[1:]:
-        if h != prev + 1:
-            runs.append((start, prev))
-            start = h
-        prev = h
-    runs.append((start, prev))
-    # a run ending at 23 and one starting at 0 are one run across midnight
-    if len(runs) > 1 and runs[0][0] == 0 and runs[-1][1] == 23:
-        runs = [(runs[-1][0], runs[0][1])] + runs[1:-1]
-    return " ".join(f"{a:02d}-{b + 1:02d}" for a, b in runs)
+    from ..propagation.model import hour_ranges_text
+
+    return hour_ranges_text(hours, " ") or "-"
 
 
 def _mode_text(modes: list[dict], limit: int = 3) -> str:
