@@ -169,3 +169,37 @@ def test_schedule_figure_marks_the_sun(two_months):
     import matplotlib.pyplot as plt
 
     plt.close(fig)
+
+
+def test_maps_show_a_seldom_open_goal_as_closed_and_say_what_was_modelled():
+    # DESIGN.md (second round): a goal open on fewer than closed_share of its
+    # point-hours is drawn and listed as closed; the titles name the months,
+    # the solar input and the hours
+    from lobeplan.render.scene import band_scene
+
+    text = SITE.format(months="months = [1, 7]", hours="[[0, 6]]").replace(
+        "points_per_goal = 30", "points_per_goal = 30\nclosed_share = 0.9999")
+    site = loads(text)
+    plan = make_plan(site)
+    scene = band_scene(site, plan, "20 m")
+    for g in scene.goals:
+        opens = [r[3] for r in g.rows]
+        if max(opens) < 0.9999:
+            assert g.advantage_db is None and all(r[2] is None for r in g.rows)
+    assert any(g.advantage_db is None for g in scene.goals)
+    assert scene.propagation_text == "propagation model: climatology, Jan, Jul 2026, F10.7 120, UT 00-06"
+    assert scene.closed_share == 0.9999
+
+
+def test_schedule_on_the_geometry_model(write_site, capsys):
+    # no ionosphere: every hour open, one month; the schedule still has one
+    # row per band and hour and a state in each
+    text = SITE.format(months="", hours="[[0, 24]]").replace('model = "climatology"', 'model = "geometry"')
+    path = write_site(text)
+    assert main(["schedule", str(path), "--json"]) == 0
+    doc = json.loads(capsys.readouterr().out)
+    assert len(doc["schedule"]) == 2 * 24
+    assert all(r["state"] for r in doc["schedule"])
+    # the same state every hour: the needs do not change with the hour
+    for band in ("40 m", "20 m"):
+        assert len({r["state"] for r in doc["schedule"] if r["band"] == band}) == 1

@@ -120,6 +120,10 @@ def format_text(result: dict) -> str:
             out.append(f"  {g['goal'][:22]:<22} {g['path']:<5} {g['band'][:7]:<7} {(g['state'] or 'closed')[:18]:<18}"
                        f" {_f(g['mean_gain_dbi'], '7.2f')} {_f(g['p10_gain_dbi'], '7.2f')}"
                        f" {_f(g['advantage_db'], '+7.2f')} {g['open_fraction']:5.2f}")
+    if result.get("schedule"):
+        out += ["", f"Hour by hour ({len(result['schedule'])} rows of band x month x UT hour in plan.json "
+                "'schedule'): lobeplan schedule prints them; --out writes schedule.csv, the switch card and "
+                "a schedule figure per band."]
     out += ["", "Spacing options side by side"]
     out.append(f"  {'option':<24} {'spacing':>8} {'best':>7} {'score':>7}  within 1 dB of its best")
     for c in result["spacing_comparison"]:

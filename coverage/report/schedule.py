@@ -134,6 +134,11 @@ def format_text(result: dict) -> str:
                 cells = {r["hour_utc"]: r for r in rows if r["band"] == band and r["month"] == m}
                 line = "".join(("  " + codes[cells[h]["state"]]) if cells[h]["state"] else "  ." for h in hours)
                 out.append(f"  {'':<{len(band)}}   {_MONTHS[m - 1]}" + line)
+            losses = [r["runner_up_loss_db"] for r in rows if r["band"] == band and r["runner_up_loss_db"] is not None]
+            if losses:
+                close = sum(1 for x in losses if x < 1.0)
+                out.append(f"  {'':<{len(band)}}   runner-up within 1 dB in {close} of {len(losses)} open "
+                           f"month-hours; median loss {sorted(losses)[len(losses) // 2]:.1f} dB")
         out.append("")
     out += [f"  {n}" for n in result["notes"]]
     if result["caveats"]:
