@@ -203,3 +203,27 @@ def test_schedule_on_the_geometry_model(write_site, capsys):
     # the same state every hour: the needs do not change with the hour
     for band in ("40 m", "20 m"):
         assert len({r["state"] for r in doc["schedule"] if r["band"] == band}) == 1
+
+
+def _parse_ranges(text):
+    hours = set()
+    if text == "all day":
+        return set(range(24))
+    for part in filter(None, text.split(", ")):
+        a, b = (int(x) for x in part.split("-"))
+        b = b if b > a else b + 24
+        hours |= {h % 24 for h in range(a, b)}
+    return hours
+
+
+from hypothesis import example, given  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+
+@given(st.sets(st.integers(0, 23)))
+@example({23, 0, 1, 5})
+def test_hour_ranges_text_round_trips(hours):
+    # the card's and tables' [start-end) UT runs name exactly the hours given
+    from lobeplan.propagation.model import hour_ranges_text
+
+    assert _parse_ranges(hour_ranges_text(hours)) == hours
