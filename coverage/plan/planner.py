@@ -152,13 +152,21 @@ def needs_for_site(site, progress: Callable[[int, int], None] | None = None
     wanted = {(g.region, g.clip, g.path) for g in site.goals}
     wanted |= {(a, None, g.path) for g in site.goals for a in g.avoid}
     n_total = len(wanted)
+    # a region's prepared months are big (every month's ionosphere at every
+    # point and hour): drop them after the last goal that uses them
+    last_use = {}
+    for gi, g in enumerate(site.goals):
+        for k in [(g.region, g.clip, g.path)] + [(a, None, g.path) for a in g.avoid]:
+            last_use[k] = gi
+    built = [0]
 
     def geometry(text: str, clip, key: str, path: str):
         k = (text, clip, path)
         if k not in geometries:
             lons, lats = region_points(site, text, clip, key)
             bearing, dist = goal_paths(site.station, lons, lats, path)
-            base = len(geometries)
+            base = built[0]
+            built[0] += 1
 
             def inner(done: int, total: int, base=base) -> None:
                 progress(base + (done / total if total else 1.0), n_total)
@@ -184,6 +192,8 @@ def needs_for_site(site, progress: Callable[[int, int], None] | None = None
                 avoid = _pool(parts)
             out.append(GoalBand(gi, goal.name, goal.path, band.name, band.freq_hz, goal.weight, needs,
                                 avoid, goal.avoid_weight))
+        for k in [k for k, last in last_use.items() if last == gi]:
+            geometries.pop(k, None)
     return tuple(out), tuple(caveats)
 
 
