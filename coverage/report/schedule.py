@@ -115,10 +115,20 @@ def build(site, args=None) -> dict:
 _MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
 
 
+def _from_the_gap(hours: list[int]) -> list[int]:
+    """Hours in clock order starting after the longest gap, so [22, 4) reads 22 23 00 01 02 03."""
+    hs = sorted(hours)
+    if len(hs) in (0, 24):
+        return hs
+    gaps = [((hs[(i + 1) % len(hs)] - h) % 24, i) for i, h in enumerate(hs)]
+    _, i = max(gaps)
+    return hs[i + 1:] + hs[:i + 1]
+
+
 def format_text(result: dict) -> str:
     st = result["station"]
     out = [f"Switch schedule for {st['name']} ({st['locator']}), propagation model: {result['model']}", ""]
-    hours = result["hours_utc"]
+    hours = _from_the_gap(result["hours_utc"])
     for opt in result["schedule_options"]:
         rows = [r for r in result["schedule"] if r["option"] == opt["option"]]
         if opt["orientation_deg"] is None or not rows:
