@@ -132,7 +132,7 @@ def test_schedule_cli_json_and_files(write_site, tmp_path, capsys):
     assert main(["schedule", str(path), "--out", str(out), "--date", "2026-12-01"]) == 0
     text = capsys.readouterr().out
     assert "Jan" in text and "Jul" in text and "runner-up" in text
-    names = sorted(p.name for p in out.iterdir())
+    names = sorted(p.name for p in out.iterdir() if not p.name.startswith("."))  # the run's manifest aside
     assert names == ["schedule-20m.png", "schedule-40m.png", "schedule.csv", "schedule.json", "switch-card.pdf",
                      "switch-card.png"]
     with open(out / "schedule.csv") as f:
