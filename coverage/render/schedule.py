@@ -194,13 +194,13 @@ def switch_card_figure(site, plan, schedule, date_text: str):
             step = (2.4 * size / 72.0) / h                  # two lines of text per entry
             y0 = y - row_h / 2 + (len(shown) - 1) * step / 2
             for k, (state, hrs) in enumerate(shown):
-                fig.text(x + 0.08 / w, y0 - k * step, f"{state}\n  {hrs} UT", fontsize=size, va="center",
+                fig.text(x + 0.08 / w, y0 - k * step, f"{state}\n  {hrs if hrs == 'all day' else hrs + ' UT'}", fontsize=size, va="center",
                          color=STATE_COLOURS[names.index(state) % len(STATE_COLOURS)],
                          gid=f"card:{goal}:{band}", linespacing=1.1)
-    fig.text(left, 0.9 / h, "Open: the goal is open on at least "
+    fig.text(left, 0.95 / h, "Open: the goal is open on at least "
              f"{100 * schedule.closed_share:.0f} % of its points in that hour in at least half the months "
-             "modelled (monthly-median ionosphere). State: the one with the best mean gain over the goal's "
-             "takeoff angles then, against one vertical.", fontsize=8, color=INK, wrap=True)
+             "modelled\n(monthly-median ionosphere). State: the one with the best mean gain over the goal's "
+             "takeoff angles then, against one vertical.", fontsize=8, color=INK, va="top", linespacing=1.3)
     fig.text(left, 0.45 / h, f"lobeplan {date_text}. Stay clear of the elements when transmitting; "
              "disconnect and ground the feed lines before a storm.", fontsize=8, color=INK)
     return fig
