@@ -71,6 +71,7 @@ def _state_kinds(plan) -> list[dict]:
 
 def build_from_plan(site, plan) -> dict:
     from ..plan.planner import goal_rows, windows_within
+    from .schedule import schedule_of, schedule_options, schedule_rows
 
     def bearing(layout, theta):   # one vertical has no baseline
         return None if layout == "single" else _r(theta, 1)
@@ -112,6 +113,9 @@ def build_from_plan(site, plan) -> dict:
         "ranking": ranking,
         "spacing_comparison": comparison,
         "orientation_scores": scores,
+        "months": list(site.propagation.month_list),
+        "schedule_options": schedule_options(plan),
+        "schedule": schedule_rows(schedule_of(site, plan)),
         "states": _state_kinds(plan),
         "stakes": stakes_json(site, plan),
         "caveats": list(plan.caveats) + list(height_caveats(site)) + list(mesh_caveats(site))
@@ -218,6 +222,10 @@ def format_text(result: dict) -> str:
                     "  avoid_weight x avoid (credit for a rear below one vertical capped), which the score averages"]
     out += _kinds_text(result.get("states", []))
     out += _stakes_text(result.get("stakes", []), result["ranking"][0]["option"] if result["ranking"] else None)
+    if result.get("schedule"):
+        out += ["", f"Hour by hour ({len(result['schedule'])} rows of band x month x UT hour in plan.json "
+                "'schedule'): lobeplan schedule prints them; --out writes schedule.csv, the switch card and "
+                "a schedule figure per band."]
     out += ["", "Spacing options side by side"]
     out.append(f"  {'option':<24} {'spacing':>8} {'best':>7} {'score':>7}  within 1 dB of its best")
     for c in result["spacing_comparison"]:
@@ -377,4 +385,7 @@ def write_files(site, args, result, out_dir) -> list[Path]:
     written = [atomic_write_json(out / "plan.json", result), atomic_write_text(out / "plan.csv", _csv(result)),
                atomic_write_text(out / "stakes.csv", _stakes_csv(result))]
     plan = run_plan(site, bool(getattr(args, "json", False)))
+    from .schedule import schedule_of, write_schedule_files
+
+    written += write_schedule_files(site, plan, schedule_of(site, plan), result, args, out)
     return written + write_plan_figures(site, plan, args, out) + [write_layout(site, plan, result, out)]
