@@ -276,3 +276,17 @@ def test_feed_suggest_json_and_text(capsys):
         loads(site.replace("[[band]]", "[[array.state]]" + block + "\n[[band]]", 1), file="t.toml")
         assert main(["feed", str(p), "--suggest", "loudest"]) == 2
         assert "--suggest" in capsys.readouterr().err
+
+
+def test_a_network_that_misses_its_currents_is_said_plainly():
+    from dataclasses import replace
+
+    from lobeplan.report import feed as feed_verb
+
+    site = loads(PAIR.format(extra="", state_extra=""), file="t.toml")
+    res = json.loads(dumps_json(feed_verb.build(site, _Args())))
+    net = next(s["network"] for b in res["bands"] for s in b["states"] if s["network"])
+    assert net["meets"] and "! no recognised form" not in "\n".join(feed_verb._network_text(net))
+    missed = dict(net, meets=False, current_error=0.4)
+    text = "\n".join(feed_verb._network_text(missed))
+    assert "no recognised form meets the wanted currents" in text and "0.40" in text
