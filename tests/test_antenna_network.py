@@ -181,8 +181,9 @@ def test_cut_tolerance_is_where_front_to_back_drops_3_db():
     # the tolerance loses 3 dB of F/B (within the bisection's resolution), by
     # half of it clearly less.
     spec, option, state = _pair_spec()
-    tol_cm, tol_vf = cut_tolerance(spec, option, state)
+    tol_cm, tol_vf, by_line = cut_tolerance(spec, option, state)
     assert tol_cm is not None and 0.5 < tol_cm < 250 and tol_vf is not None
+    assert tol_cm == min(x for x in by_line if x is not None) and len(by_line) == 2
     net = state_network(spec, option, state)
     el, az = _front(spec, option, state)
     fb0 = _fb(spec, option, net, F0, el, az)[2]

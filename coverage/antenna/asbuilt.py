@@ -63,6 +63,7 @@ class NetworkCheck:
     tolerance_cm: float | None
     tolerance_vf_pct: float | None
     stress: tuple[PartStress, ...]
+    tolerance_cm_by_line: tuple[float | None, ...] = ()
 
 
 def _front(spec, option, state):
@@ -100,8 +101,9 @@ def _smallest(cost, limit: float) -> float | None:
 
 
 @functools.lru_cache(maxsize=128)
-def cut_tolerance(spec: ArraySpec, option: ArrayOption, state: State) -> tuple[float | None, float | None]:
-    """(cm of any one line, % of velocity factor) that cost 3 dB of front-to-back (cached).
+def cut_tolerance(spec: ArraySpec, option: ArrayOption, state: State):
+    """(cm of the most sensitive line, % of velocity factor, cm of each line) that cost
+    3 dB of front-to-back (cached).
 
     None where the state has under 6 dB of front-to-back or no error in the
     searched range (2.5 m, 25 %) costs 3 dB.
@@ -111,17 +113,20 @@ def cut_tolerance(spec: ArraySpec, option: ArrayOption, state: State) -> tuple[f
     el, az = _front(spec, option, state)
     _, _, fb0 = _fb(spec, option, net, f0, el, az)
     if fb0 < _MIN_FB_DB:
-        return None, None
+        return None, None, tuple(None for _ in net.branches)
 
     def line_cost(dx, e, sign):
         br = list(net.branches)
         br[e] = replace(br[e], line_m=max(br[e].line_m + sign * dx, 0.0))
         return fb0 - _fb(spec, option, replace(net, branches=tuple(br)), f0, el, az)[2]
 
-    found = [_smallest(lambda dx, e=e, sg=sg: line_cost(dx, e, sg), _MAX_LENGTH_ERROR_M)
-             for e in range(len(net.branches)) for sg in (1.0, -1.0)]
-    found = [x for x in found if x is not None]
-    tol_cm = 100.0 * min(found) if found else None
+    per_line = []
+    for e in range(len(net.branches)):
+        both = [_smallest(lambda dx, e=e, sg=sg: line_cost(dx, e, sg), _MAX_LENGTH_ERROR_M) for sg in (1.0, -1.0)]
+        both = [x for x in both if x is not None]
+        per_line.append(100.0 * min(both) if both else None)
+    found = [x for x in per_line if x is not None]
+    tol_cm = min(found) if found else None
 
     def vf_cost(eps, sign):
         feed = replace(spec.feed, velocity_factor=spec.feed.velocity_factor * (1.0 + sign * eps))
@@ -129,7 +134,7 @@ def cut_tolerance(spec: ArraySpec, option: ArrayOption, state: State) -> tuple[f
 
     found = [_smallest(lambda e, sg=sg: vf_cost(e, sg), _MAX_VF_ERROR) for sg in (1.0, -1.0)]
     found = [x for x in found if x is not None]
-    return tol_cm, (100.0 * min(found) if found else None)
+    return tol_cm, (100.0 * min(found) if found else None), tuple(per_line)
 
 
 def check_network(spec: ArraySpec, option: ArrayOption, state: State, freqs_hz, power_w: float = 100.0
@@ -160,8 +165,8 @@ def check_network(spec: ArraySpec, option: ArrayOption, state: State, freqs_hz, 
         if net.match is not None:
             s = float(min(swr(l_network_input_ohm(net.match, f, drive.junction_impedance_ohm)), 1e6))
         checks.append(BandCheck(float(f), tuple(complex(x) for x in drive.base_current_a), fwd, fb, s))
-    tol_cm, tol_vf = cut_tolerance(spec, option, state)
+    tol_cm, tol_vf, tol_lines = cut_tolerance(spec, option, state)
     # the parts' stress on the band asked about (its centre: the middle frequency)
     f_mid = float(list(freqs_hz)[len(list(freqs_hz)) // 2]) if len(list(freqs_hz)) else f0
     stress = part_stress(base_impedance_ohm(spec, option, f_mid), spec.feed, net, f_mid, power_w)
-    return NetworkCheck(net, az, float(el), tuple(checks), tol_cm, tol_vf, stress)
+    return NetworkCheck(net, az, float(el), tuple(checks), tol_cm, tol_vf, stress, tol_lines)

@@ -358,7 +358,8 @@ def pattern_figures(gain_dbi: np.ndarray) -> dict:
         Ratios are capped at 60 dB.
     """
     g = np.asarray(gain_dbi, dtype=float)
-    el, az = np.unravel_index(int(np.argmax(g)), g.shape)
+    # gains equal to 1e-6 dB count as equal, so twin beams pick the same one on every machine
+    el, az = np.unravel_index(int(np.argmax(np.round(g / _TIE_DB))), g.shape)
     row = g[el]
     peak = float(row[az])
     n = row.size

@@ -103,6 +103,7 @@ def _network_row(spec, option, state, band, power) -> dict:
     out = network_dict(chk.network)
     out["tolerance_cm"] = None if chk.tolerance_cm is None else round(chk.tolerance_cm, 1)
     out["tolerance_vf_pct"] = None if chk.tolerance_vf_pct is None else round(chk.tolerance_vf_pct, 2)
+    out["tolerance_cm_by_line"] = [None if x is None else round(x, 1) for x in chk.tolerance_cm_by_line]
     out["stress"] = _stress_rows(chk.stress)
     out["power_w"] = power
     out["checks"] = [{"freq_mhz": round(c.freq_hz / 1e6, 4), "element_currents": current_rows(c.base_current_a),
@@ -347,9 +348,11 @@ def _network_text(n) -> list[str]:
     tol = n.get("tolerance_cm")
     vf = n.get("tolerance_vf_pct")
     if "tolerance_cm" in n:
+        by_line = ", ".join("over 250" if x is None else f"{x:.1f}" for x in n.get("tolerance_cm_by_line", []))
         out.append("      cut tolerance: " + ("no front-to-back to lose" if tol is None and vf is None else
-                   f"{'over 250' if tol is None else f'{tol:.1f}'} cm on any one line, or "
-                   f"{'over 25' if vf is None else f'{vf:.2f}'} % of velocity factor, costs 3 dB of front-to-back"))
+                   f"{'over 250' if tol is None else f'{tol:.1f}'} cm on the most sensitive line (each line: "
+                   f"{by_line} cm), or {'over 25' if vf is None else f'{vf:.2f}'} % of velocity factor, costs "
+                   "3 dB of front-to-back"))
     for c in n.get("checks", []):
         cur = ", ".join(f"{e['amplitude']:.2f}/{e['phase_deg']:+.0f}" for e in c["element_currents"])
         sw = "-" if c["swr"] is None else f"{c['swr']:.2f}"
