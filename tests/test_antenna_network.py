@@ -3,6 +3,7 @@ import math
 
 import numpy as np
 import pytest
+from hypothesis import given, settings, strategies as st
 
 from lobeplan.antenna.asbuilt import FB_LOSS_DB, _fb, _front, check_network, cut_tolerance
 from lobeplan.antenna.layout import layout_positions_m
@@ -216,3 +217,20 @@ def test_match_stress_follows_the_power():
     chk = check_network(spec, option, state, [7.0e6, F0, 7.3e6], 100.0)
     assert chk.checks[1].swr == pytest.approx(1.0, abs=1e-6)
     assert chk.checks[0].swr > 1.0 and chk.checks[2].swr > 1.0
+
+
+@settings(max_examples=8, deadline=None)
+@given(st.lists(st.floats(-180.0, 180.0), min_size=3, max_size=3), st.integers(0, 7))
+def test_any_square_state_and_its_image_share_one_design(phases, k):
+    # property: whatever the wanted phases, a symmetry of the square carries
+    # the state's design onto its image's (the geometry is the same plan)
+    pos = layout_positions_m("square", 10.5)
+    w = _w([0.0, *phases])
+    perm = layout_symmetries(pos, np.mean(pos, axis=0))[k]
+    image = np.empty_like(w)
+    image[list(perm)] = w
+    a = design_network(_z(pos), CABLE, F0, w, pos)
+    b = design_network(_z(pos), CABLE, F0, image, pos)
+    assert a.form == b.form
+    for i in range(4):
+        assert b.branches[perm[i]].line_m == pytest.approx(a.branches[i].line_m, abs=1e-9)
