@@ -10,9 +10,10 @@ from ..fileio import atomic_savefig
 __all__ = ["draw_cuts"]
 
 _RANGE_DB = 40.0
+_SECTOR_COLOURS = ("#2f7fb8", "#c9a227", "#5a9e5a", "#a05aa0")
 
 
-def draw_cuts(gain_dbi: np.ndarray, title: str, path: str | Path) -> Path:
+def draw_cuts(gain_dbi: np.ndarray, title: str, path: str | Path, foreground=()) -> Path:
     """Draw the azimuth cut at the peak elevation and the elevation cut
     through the peak bearing (front and back), and save them atomically.
 
@@ -23,6 +24,9 @@ def draw_cuts(gain_dbi: np.ndarray, title: str, path: str | Path) -> Path:
     title : str
     path : path-like
         Output file; the format follows the suffix.
+    foreground : sequence of dict
+        Foreground sectors (``bearing_deg``, ``from_m``, ``ground``), shaded
+        on the azimuth cut.
     """
     import matplotlib
 
@@ -42,6 +46,14 @@ def draw_cuts(gain_dbi: np.ndarray, title: str, path: str | Path) -> Path:
     row = np.append(g[el], g[el, 0])
     ax1.plot(theta, np.maximum(row, inner) - inner, color="tab:blue")
     ax1.set_title(f"azimuth at {el} deg elevation", fontsize=9)
+    for i, f in enumerate(foreground):
+        lo, hi = f["bearing_deg"]
+        span = (hi - lo) % 360.0 or 360.0
+        ax1.bar(np.radians(lo + span / 2), _RANGE_DB, width=np.radians(span), bottom=0.0,
+                color=_SECTOR_COLOURS[i % len(_SECTOR_COLOURS)], alpha=0.18, linewidth=0,
+                label=f"{f['ground']} from {f['from_m']:g} m", gid=f"foreground:{i}")
+    if len(foreground):
+        ax1.legend(fontsize=6.5, loc="lower left", bbox_to_anchor=(-0.12, -0.16), frameon=False)
 
     ax2 = fig.add_subplot(1, 2, 2, projection="polar")
     ax2.set_thetamin(0)

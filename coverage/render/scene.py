@@ -14,7 +14,7 @@ import numpy as np
 
 from ..grid import AZIMUTH_DEG, ELEVATION_DEG, to_true_bearing
 
-__all__ = ["Lobe", "GoalShade", "AvoidShade", "BandScene", "band_scene", "chosen_option",
+__all__ = ["Lobe", "GoalShade", "AvoidShade", "ForegroundShade", "BandScene", "band_scene", "chosen_option",
            "key_takeoff_deg", "true_bearing_row", "lobe_radius_km", "slug"]
 
 
@@ -58,6 +58,17 @@ class AvoidShade:
 
 
 @dataclass(frozen=True)
+class ForegroundShade:
+    """A foreground sector: true bearings clockwise from ``from_deg`` to ``to_deg``,
+    ground ``ground`` beginning ``from_m`` from the array."""
+
+    from_deg: float
+    to_deg: float
+    from_m: float
+    ground: str
+
+
+@dataclass(frozen=True)
 class BandScene:
     band: str
     station_name: str
@@ -78,6 +89,7 @@ class BandScene:
     lobe_peak_km: float
     lobe_floor_db: float
     ring_step_km: float
+    foreground: tuple[ForegroundShade, ...] = ()
 
     @property
     def lobe_top_dbi(self) -> float:
@@ -149,7 +161,7 @@ def band_scene(site, plan, band_name: str) -> BandScene:
         first = op.patterns[(band_name, op.state_names[0])].gain_dbi
         takeoff = float(ELEVATION_DEG[np.unravel_index(int(np.argmax(first)), first.shape)[0]])
 
-    rows_g = [true_bearing_row(op.patterns[(band_name, s)].gain_dbi, takeoff, theta) for s in op.state_names]
+    rows_g = [_state_row(op, band_name, s, takeoff, theta) for s in op.state_names]
     top = max(float(r.max()) for r in rows_g)
     lobes = tuple(Lobe(s, r, lobe_radius_km(r, top, site.map.lobe_floor_db, site.map.lobe_peak_km),
                        float(r.max()), float(AZIMUTH_DEG[int(np.argmax(r))]))
@@ -192,4 +204,17 @@ def band_scene(site, plan, band_name: str) -> BandScene:
         orientation_deg=theta, score_db=None if entry is None else float(entry.score_db),
         model=site.propagation.model, takeoff_deg=float(takeoff), takeoff_from_needs=from_needs,
         lobes=lobes, goals=tuple(goals), avoid=avoids, lobe_peak_km=float(site.map.lobe_peak_km),
-        lobe_floor_db=float(site.map.lobe_floor_db), ring_step_km=float(site.map.ring_step_km))
+        lobe_floor_db=float(site.map.lobe_floor_db), ring_step_km=float(site.map.ring_step_km),
+        foreground=tuple(ForegroundShade(f.from_deg, f.to_deg, f.from_m, f.ground.name)
+                         for f in site.array.foreground))
+
+
+def _state_row(op, band_name: str, state: str, takeoff_deg: float, theta_deg: float) -> np.ndarray:
+    """A state's gain over true bearings at the takeoff angle, the foreground blended."""
+    if op.foreground:
+        from ..antenna.foreground import blend_true_bearing
+
+        grid = blend_true_bearing(op.foreground["gains"][(band_name, state)], op.foreground["masks"][band_name],
+                                  theta_deg)
+        return grid[int(round(takeoff_deg))]
+    return true_bearing_row(op.patterns[(band_name, state)].gain_dbi, takeoff_deg, theta_deg)

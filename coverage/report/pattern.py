@@ -6,12 +6,14 @@ from pathlib import Path
 
 import numpy as np
 
+from ..antenna.foreground import blend_true_bearing, class_gains_dbi, foreground_masks
 from ..antenna.pattern import GAIN_FLOOR_DBI, array_pattern, pattern_figures
 from ..errors import UsageError
 from ..grid import AZIMUTH_DEG, ELEVATION_DEG, to_true_bearing
 
 __all__ = ["add_arguments", "build", "format_text", "write_files",
-           "select_bands", "select_states", "to_true_bearing", "current_rows", "pair"]
+           "select_bands", "select_states", "to_true_bearing", "current_rows", "pair", "foreground_json",
+           "true_pattern_dbi"]
 
 
 def add_arguments(parser) -> None:
@@ -63,6 +65,20 @@ def _r(x, nd=2):
     return None if x is None else round(float(x), nd)
 
 
+def foreground_json(spec) -> list[dict]:
+    """The site's foreground sectors, JSON-ready (empty without)."""
+    return [{"bearing_deg": [s.from_deg, s.to_deg], "from_m": s.from_m, "ground": s.ground.name}
+            for s in spec.foreground]
+
+
+def true_pattern_dbi(spec, option, res, orientation_deg: float) -> np.ndarray:
+    """A result's gain over true bearings, the foreground blended per class (dBi)."""
+    if not spec.foreground:
+        return np.maximum(to_true_bearing(res.gain_dbi, orientation_deg), GAIN_FLOOR_DBI)
+    return blend_true_bearing(class_gains_dbi(spec, option, res), foreground_masks(spec, res.freq_hz),
+                              orientation_deg)
+
+
 def build(site, args=None) -> dict:
     band_name = getattr(args, "band", None)
     state_name = getattr(args, "state", None)
@@ -74,8 +90,12 @@ def build(site, args=None) -> dict:
     for band in bands:
         for option, state in pairs:
             res = array_pattern(site.array, option, state, band.freq_hz)
-            fig = pattern_figures(res.gain_dbi)
-            true_gain = np.maximum(to_true_bearing(res.gain_dbi, orient), GAIN_FLOOR_DBI)
+            true_gain = true_pattern_dbi(site.array, option, res, orient)
+            if site.array.foreground:  # figures of the blended grid, already over true bearings
+                fig = pattern_figures(true_gain)
+                fig["peak_azimuth_deg"] = (fig["peak_azimuth_deg"] - orient) % 360.0
+            else:
+                fig = pattern_figures(res.gain_dbi)
             out.append({
                 "band": band.name,
                 "option": option.name,
@@ -97,7 +117,7 @@ def build(site, args=None) -> dict:
             })
     for row in out:
         row.pop("_option")
-    return {"patterns": out}
+    return {"patterns": out, "foreground": foreground_json(site.array)}
 
 
 def _fmt(x, spec="6.1f"):
@@ -119,6 +139,10 @@ def format_text(result: dict) -> str:
         lines.append(f"Azimuths are true bearings; the baseline points to "
                      f"{result['patterns'][0]['orientation_deg']:.1f} deg. Gain is referred to the "
                      "power into the feed (ground and line loss included).")
+        for f in result.get("foreground", []):
+            lines.append(f"Foreground: {f['ground']} from {f['from_m']:g} m toward {f['bearing_deg'][0]:g}-"
+                         f"{f['bearing_deg'][1]:g} deg true; each ray's gain blends the grounds its first "
+                         "Fresnel zone falls on.")
     return "\n".join(lines) + "\n"
 
 
@@ -139,5 +163,6 @@ def write_files(site, args, result, out_dir) -> list[Path]:
             name, n = f"{stem}-{n}", n + 1
         seen.add(name)
         title = f"{p['band']}, {p['state']}" + ("" if p["spacing_m"] is None else f", {p['spacing_m']:g} m")
-        written.append(draw_cuts(np.asarray(p["gain_dbi"]), title, Path(out_dir) / f"{name}.png"))
+        written.append(draw_cuts(np.asarray(p["gain_dbi"]), title, Path(out_dir) / f"{name}.png",
+                                 foreground=result.get("foreground", ())))
     return written
