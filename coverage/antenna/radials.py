@@ -221,6 +221,7 @@ def _radial_loss(ground: Ground, radials: Radials, height_m: float, radius_m: fl
     r2, w2 = _log_grid(max(length, radius_m), outer, _N_RHO)
     rho = np.concatenate([r1, r2])
     w_rho = np.concatenate([w1, w2])
+    inner = np.concatenate([np.ones(r1.size, bool), np.zeros(r2.size, bool)])  # own screen, up to its tips
     h2 = np.abs(plane_field_a_per_m(nodes, sol.segment_m, freq_hz, rho)) ** 2
     z_soil = soil_surface_impedance_ohm(ground, freq_hz).real
     depth = radials.depth_m or 0.0
@@ -229,7 +230,7 @@ def _radial_loss(ground: Ground, radials: Radials, height_m: float, radius_m: fl
     n_el = pos.shape[0]
     out = np.empty(n_el)
     if n_el == 1:
-        re_z = np.where(rho <= length, screen_surface_impedance_ohm(ground, freq_hz, radials.count, wire_r,
+        re_z = np.where(inner, screen_surface_impedance_ohm(ground, freq_hz, radials.count, wire_r,
                                                                     depth, rho).real, z_soil)
         out[0] = 2.0 * math.pi * float(np.sum(w_rho * re_z * h2 * rho * rho))
         return out
@@ -238,10 +239,13 @@ def _radial_loss(ground: Ground, radials: Radials, height_m: float, radius_m: fl
         px = pos[i, 0] + rho[:, None] * np.cos(phi)[None, :]
         py = pos[i, 1] + rho[:, None] * np.sin(phi)[None, :]
         dist = np.hypot(px[..., None] - pos[:, 0], py[..., None] - pos[:, 1])   # (n_rho, n_phi, n_el)
-        owner_rho = np.min(dist, axis=-1)  # radials cut at the midlines: the nearest element's screen
+        owner = np.argmin(dist, axis=-1)   # radials cut at the midlines: the nearest element's screen
+        own = owner == i
+        owner_rho = np.where(own, rho[:, None], np.min(dist, axis=-1))
         screen = screen_surface_impedance_ohm(ground, freq_hz, radials.count, wire_r, depth,
                                               np.maximum(owner_rho, radius_m)).real
-        re_z = np.where(owner_rho <= length, screen, z_soil)
+        covered = np.where(own, inner[:, None], owner_rho <= length)
+        re_z = np.where(covered, screen, z_soil)
         ring = np.mean(re_z, axis=1)  # average over azimuth
         out[i] = 2.0 * math.pi * float(np.sum(w_rho * ring * h2 * rho * rho))
     return out

@@ -128,6 +128,17 @@ def build(site, args=None) -> dict:
     return {"bands": out, "radials": _radials_json(spec)}
 
 
+def write_files(site, args, result, out_dir) -> list:
+    """The radial table as a figure, ``radials.png``."""
+    from pathlib import Path
+
+    from ..render.radials import draw_radial_table
+
+    if not result["bands"]:
+        return []
+    return [draw_radial_table(result["bands"], Path(out_dir) / "radials.png")]
+
+
 def _radials_json(spec) -> dict | None:
     r = spec.radials
     if r is None:
