@@ -42,7 +42,7 @@ import numpy as np
 from ..grid import AZIMUTH_DEG, ELEVATION_DEG, to_true_bearing
 from .model import ArrayOption, ArraySpec, ForegroundSector, Ground
 from .mom import C0_M_S, solve_elements
-from .pattern import ArrayResult, GAIN_FLOOR_DBI, coupled_elements, gain_from_currents_dbi
+from .pattern import GAIN_FLOOR_DBI, ArrayResult, coupled_elements, gains_from_currents_dbi
 
 __all__ = ["ground_classes", "current_centroid_m", "fresnel_interval_m", "share_beyond", "sector_bearings",
            "foreground_masks", "class_gains_dbi", "blend_true_bearing"]
@@ -170,8 +170,10 @@ def class_gains_dbi(spec: ArraySpec, option: ArrayOption, result: ArrayResult) -
     """
     classes = ground_classes(spec)
     sol = coupled_elements(spec, option, result.freq_hz)
-    out = [result.gain_dbi] + [gain_from_currents_dbi(sol, g, result.base_current_a, 1.0) for g in classes[1:]]
-    return np.stack(out)
+    out = np.empty((len(classes),) + result.gain_dbi.shape)
+    out[0] = result.gain_dbi
+    out[1:] = gains_from_currents_dbi(sol, classes[1:], result.base_current_a, 1.0)
+    return out
 
 
 def blend_true_bearing(gains_frame_dbi: np.ndarray, masks: np.ndarray, orientation_deg: float) -> np.ndarray:

@@ -44,6 +44,7 @@ __all__ = [
     "state_currents",
     "state_drive",
     "gain_from_currents_dbi",
+    "gains_from_currents_dbi",
     "LOBE_WINDOW_DB",
     "lobe_bearings_deg",
 ]
@@ -154,6 +155,17 @@ def _vertical_kernel(freq_hz: float, segment_m: float, n_node: int, ground: Grou
     return kern
 
 
+@functools.lru_cache(maxsize=32)
+def _array_phase(freq_hz: float, positions: tuple[tuple[float, float], ...]) -> np.ndarray:
+    """Horizontal phase of each element over the grid, shape (n_el, 91, 360) (cached)."""
+    k = 2.0 * math.pi * freq_hz / C0_M_S
+    pos = np.asarray(positions, dtype=float).reshape(-1, 2)
+    proj = pos[:, 0, None] * _COS_AZ[None, :] + pos[:, 1, None] * _SIN_AZ[None, :]  # (n_el, 360)
+    phase = np.exp(1j * k * _COS_EL[None, :, None] * proj[:, None, :])
+    phase.flags.writeable = False
+    return phase
+
+
 def gain_from_currents_dbi(sol: CoupledElements, ground: Ground, base_current_a: np.ndarray,
                            input_power_w: float) -> np.ndarray:
     """Gain over the grid for given base currents and input power.
@@ -171,14 +183,22 @@ def gain_from_currents_dbi(sol: CoupledElements, ground: Ground, base_current_a:
     ndarray, shape (91, 360)
         dBi in the array frame, floored at -60 dBi.
     """
+    return gains_from_currents_dbi(sol, (ground,), base_current_a, input_power_w)[0]
+
+
+def gains_from_currents_dbi(sol: CoupledElements, grounds, base_current_a: np.ndarray,
+                            input_power_w: float) -> np.ndarray:
+    """:func:`gain_from_currents_dbi` for several far-field grounds at once.
+
+    The array factor is shared; only the vertical factor (the Fresnel
+    reflection) differs per ground. Returns ndarray, shape (n_ground, 91, 360).
+    """
     k = 2.0 * math.pi * sol.freq_hz / C0_M_S
     nodes = sol.currents_on_wires(base_current_a)                       # (n_el, n_node)
-    kern = _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size, ground)
-    vert = nodes @ kern.T                                               # (n_el, 91)
-    pos = sol.positions_m
-    proj = pos[:, 0, None] * _COS_AZ[None, :] + pos[:, 1, None] * _SIN_AZ[None, :]  # (n_el, 360)
-    phase = np.exp(1j * k * _COS_EL[None, :, None] * proj[:, None, :])  # (n_el, 91, 360)
-    field = np.einsum("ep,epa->pa", vert, phase)
+    vert = np.stack([nodes @ _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size, g).T
+                     for g in grounds])                                 # (n_ground, n_el, 91)
+    phase = _array_phase(sol.freq_hz, tuple(map(tuple, sol.positions_m)))
+    field = np.einsum("gep,epa->gpa", vert, phase)
     gain = ETA0_OHM * k * k * (field.real ** 2 + field.imag ** 2) / (8.0 * math.pi * input_power_w)
     floor = 10.0 ** (GAIN_FLOOR_DBI / 10.0)
     return 10.0 * np.log10(np.maximum(gain, floor))

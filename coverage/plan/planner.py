@@ -285,10 +285,9 @@ def true_gain_dbi(plan_option: OptionPlan, band_name: str, state_name: str, thet
     gains = fg["gains"][key] if fg else plan_option.patterns[key].gain_dbi[None]
     if floor_dbi is not None:
         gains = np.maximum(gains, floor_dbi)
-    turned = np.stack([_rotate(g, theta_deg) for g in gains])
     if not fg:
-        return turned[0]
-    return np.sum(fg["masks"][band_name] * turned, axis=0)
+        return _rotate(gains[0], theta_deg)
+    return sum(m * _rotate(g, theta_deg) for m, g in zip(fg["masks"][band_name], gains))
 
 
 def _ref_mean_fg(weights: np.ndarray, masks: np.ndarray, ref_k: np.ndarray) -> float:
@@ -299,8 +298,9 @@ def _ref_mean_fg(weights: np.ndarray, masks: np.ndarray, ref_k: np.ndarray) -> f
 def prepare_needs(goal_bands, ref: dict, foreground: dict | None = None) -> list[dict]:
     """Per goal-band pieces every option shares: sums, spectra, reference means.
 
-    With a foreground (:func:`site_foreground`), ``spec`` is a list with one
-    spectrum of W M_k per ground class and ``weights`` stays W.
+    With a foreground (:func:`site_foreground`), ``spec`` is the spectrum of
+    W M_k for every ground class k stacked along the rows (n_class * 91, 181)
+    and ``weights`` stays W.
     """
     prepared = []
     for gb in goal_bands:
@@ -315,7 +315,8 @@ def prepare_needs(goal_bands, ref: dict, foreground: dict | None = None) -> list
                 entry[tag + "spec"] = spectrum(w) if w_sum > 0 else None
                 entry[tag + "ref"] = _ref_mean(w, ref[gb.band_name]) if w_sum > 0 else None
             else:
-                entry[tag + "spec"] = [spectrum(w * m) for m in masks] if w_sum > 0 else None
+                # the classes stacked along the rows: one correlation sums them all
+                entry[tag + "spec"] = spectrum(np.concatenate(w[None] * masks)) if w_sum > 0 else None
                 entry[tag + "ref"] = (_ref_mean_fg(w, masks, foreground["ref"][gb.band_name])
                                       if w_sum > 0 else None)
         entry["masks"] = masks
@@ -330,15 +331,13 @@ def _advantage(weights, w_spec, w_sum, ref_mean, gain_floored, gain_spec, thetas
     ``direct``: one vectorised pass over the whole grid per bearing; used for
     a fixed bearing and as the benchmark's baseline.
     With ``masks`` (n_class, 91, 360), ``gain_floored`` is (n_class, 91, 360)
-    and ``w_spec``/``gain_spec`` are per class: sum_k correlate(W M_k, G_k).
+    and ``w_spec``/``gain_spec`` hold the classes stacked along the rows, so
+    that one correlation gives sum_k correlate(W M_k, G_k).
     """
+    if method == "fft":  # with a foreground both spectra hold the classes stacked along the rows
+        return correlate(w_spec, gain_spec, step_deg) / w_sum - ref_mean
     if masks is None:
-        if method == "fft":
-            return correlate(w_spec, gain_spec, step_deg) / w_sum - ref_mean
         return np.array([float(np.sum(weights * _rotate(gain_floored, t))) for t in thetas]) / w_sum - ref_mean
-    if method == "fft":
-        total = sum(correlate(ws, gs, step_deg) for ws, gs in zip(w_spec, gain_spec))
-        return total / w_sum - ref_mean
     total = [sum(float(np.sum(weights * m * _rotate(g, t))) for m, g in zip(masks, gain_floored)) for t in thetas]
     return np.array(total) / w_sum - ref_mean
 
@@ -357,8 +356,8 @@ def score_option(option, patterns, goal_bands, prepared, thetas, step_deg, metho
     credit_cap = avoid_credit_cap_db(option.n_elements)
     if foreground:
         floored_gain = {k: floored(g) for k, g in foreground["gains"].items()}
-        gain_specs = ({k: [spectrum(gk) for gk in g] for k, g in floored_gain.items()} if method == "fft"
-                      else {})
+        gain_specs = ({k: spectrum(g.reshape(-1, g.shape[-1])) for k, g in floored_gain.items()}
+                      if method == "fft" else {})
     else:
         floored_gain = {k: floored(r.gain_dbi) for k, r in patterns.items()}
         gain_specs = {k: spectrum(g) for k, g in floored_gain.items()} if method == "fft" else {}
