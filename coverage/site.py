@@ -271,6 +271,7 @@ def loads(text: str, file: str = "<site>", base_dir: str = ".") -> Site:
     bands = _bands(r, doc["band"])
     goals = _goals(r, doc["goal"], bands)
     _check_height(r, array, bands)
+    _check_radials(r, array, bands)
     prop = _propagation(r, doc.get("propagation", {}))
     map_settings = _map(r, doc.get("map", {}))
     return Site(file, base_dir, station, array, orientation, bands, goals, prop, map_settings)
@@ -288,6 +289,24 @@ def _check_height(r: _Reader, array: ArraySpec, bands: tuple[Band, ...]) -> None
             raise r.fail("array.height_m", f"{array.height_m:g} m is {h:.2f} wavelength on band "
                          f"{b.name!r} ({b.freq_mhz:g} MHz); the element model holds up to "
                          f"{MAX_HEIGHT_WAVELENGTHS:g} wavelength")
+
+
+# elevated radials are wires in the moment method, checked up to this length
+MAX_ELEVATED_WAVELENGTHS = 1.0
+
+
+def _check_radials(r: _Reader, array: ArraySpec, bands: tuple[Band, ...]) -> None:
+    rad = array.radials
+    if rad is None or rad.buried:
+        return
+    for b in bands:
+        x = rad.length_m * b.freq_hz / 299_792_458.0
+        if x > MAX_ELEVATED_WAVELENGTHS:
+            raise r.fail("array.radials.length_m", f"{rad.length_m:g} m is {x:.2f} wavelength on band {b.name!r}; "
+                         f"elevated radials are modelled up to {MAX_ELEVATED_WAVELENGTHS:g} wavelength")
+    if rad.wire_diameter_mm * 1e-3 * 10.0 >= rad.length_m:
+        raise r.fail("array.radials.wire_diameter_mm", f"{rad.wire_diameter_mm:g} mm is too fat for "
+                     f"{rad.length_m:g} m radials; expected a thin wire")
 
 
 def height_caveats(site: "Site") -> tuple[str, ...]:
@@ -495,8 +514,9 @@ def _radials(r: _Reader, t: Any) -> Radials:
     if not (has_depth or has_height):
         raise r.fail(key, "give depth_m (buried radials) or height_m (elevated radials)")
     elevated = has_height
-    count = r.number(t, "count", key, lo=2 if elevated else 1, hi=1000, integer=True,
-                     what=("a whole number of elevated radials from 2 to 1000" if elevated
+    # elevated radials are wires in the moment method: 32 of them is already more than is built
+    count = r.number(t, "count", key, lo=2 if elevated else 1, hi=32 if elevated else 1000, integer=True,
+                     what=("a whole number of elevated radials from 2 to 32" if elevated
                            else "a whole number of radials from 1 to 1000"))
     length = r.number(t, "length_m", key, lo=0.0, hi=1000.0, lo_open=True,
                       what="a radial length in metres, more than 0 and up to 1000")
@@ -506,9 +526,6 @@ def _radials(r: _Reader, t: Any) -> Radials:
                       what="a height above ground in metres, more than 0 and up to 20")
     wire = r.number(t, "wire_diameter_mm", key, default=2.0, lo=0.0, hi=50.0, lo_open=True,
                     what="a wire diameter in mm, more than 0 and up to 50")
-    if elevated:
-        raise r.fail(_join(key, "height_m"), "elevated radials are not modelled yet; give depth_m for buried "
-                     "radials, or ground_loss_ohm")
     return Radials(count, length, depth, height, wire)
 
 

@@ -287,13 +287,22 @@ def radial_loss_ohm(ground: Ground, radials: Radials, height_m: float, radius_m:
 def ground_loss(spec: ArraySpec, option: ArrayOption | None, freq_hz: float) -> GroundLoss:
     """Series loss per base for an option (None: one vertical alone) on one band.
 
-    ``spec.ground_loss_ohm`` overrides; otherwise buried radials give it;
-    without either the default of :data:`DEFAULT_GROUND_LOSS_OHM` holds.
+    ``spec.ground_loss_ohm`` overrides; otherwise the radials give it (buried:
+    :func:`radial_loss_ohm`; elevated: :func:`lobeplan.antenna.elevated.elevated_loss_ohm`,
+    each element's radials alone); without either the default of
+    :data:`DEFAULT_GROUND_LOSS_OHM` holds.
     """
     positions = ((0.0, 0.0),) if option is None else option.positions_m
     n = len(positions)
     if spec.ground_loss_ohm is not None or spec.radials is None:
         value = DEFAULT_GROUND_LOSS_OHM if spec.ground_loss_ohm is None else spec.ground_loss_ohm
         return GroundLoss(np.full(n, float(value)), "given")
+    r = spec.radials
+    if not r.buried:
+        from .elevated import elevated_loss_ohm  # the wire model; imported only when used
+
+        one = elevated_loss_ohm(spec.ground, spec.height_m, spec.radius_m, r.height_m, r.count, r.length_m,
+                                0.5e-3 * r.wire_diameter_mm, float(freq_hz))
+        return GroundLoss(np.full(n, one), "radials")
     return GroundLoss(radial_loss_ohm(spec.ground, spec.radials, spec.height_m, spec.radius_m, positions,
                                       freq_hz), "radials")

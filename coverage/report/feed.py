@@ -145,7 +145,8 @@ def _radials_json(spec) -> dict | None:
         return None
     return {"count": r.count, "length_m": r.length_m, "depth_m": r.depth_m, "height_m": r.height_m,
             "wire_diameter_mm": r.wire_diameter_mm,
-            "neighbours": "radials cut where they meet and bonded along the midline"}
+            "neighbours": ("radials cut where they meet and bonded along the midline" if r.buried
+                           else "each element's radials solved alone")}
 
 
 def _as_built(fed) -> list[dict]:
@@ -211,18 +212,26 @@ def format_text(result: dict) -> str:
             extra = ("" if q["common_junction_line_m"] is None else
                      "; from one junction: " + ", ".join(f"{x:.2f}" for x in q["common_junction_line_m"]) + " m")
             lines.append(f"    current forcing: lambda/4 of this cable is {q['quarter_wave_m']:.2f} m{extra}")
-        lines.extend(_table_text(b))
+        lines.extend(_table_text(b, result.get("radials")))
         lines.append("")
     if result["bands"]:
         lines.extend(_footnotes(result))
     return "\n".join(lines)
 
 
-def _table_text(b) -> list[str]:
+def _system(rad) -> str:
+    if rad is None:
+        return "ground_loss_ohm"
+    where = f"{rad['depth_m']:g} m deep" if rad["height_m"] is None else f"elevated {rad['height_m']:g} m"
+    return f"{rad['count']} x {rad['length_m']:g} m, {where}"
+
+
+def _table_text(b, rad) -> list[str]:
     ref = b["radial_table_reference"]
     lengths = sorted({r["length_wavelengths"] for r in b["radial_table"]})
     out = [f"  buried radials ({ref['depth_m']:g} m deep, {ref['wire_diameter_mm']:g} mm wire), state "
-           f"{ref['state']!r}; now {ref['site_loss_ohm']:.2f} ohm, efficiency {100 * ref['site_efficiency']:.0f} %:",
+           f"{ref['state']!r}; now ({_system(rad)}) {ref['site_loss_ohm']:.2f} ohm, efficiency "
+           f"{100 * ref['site_efficiency']:.0f} %:",
            "    count " + "".join(f"{f'{x:g} wavelength':>26}" for x in lengths),
            "          " + "".join(f"{'ohm   eff.  gain dB':>26}" for _ in lengths)]
     for n in sorted({r["count"] for r in b["radial_table"]}):
@@ -253,7 +262,13 @@ def _footnotes(result) -> list[str]:
              "in the ground; gain dB = change of the state's gain toward its beam against the site's own "
              "ground system; as built = true currents (amplitude/phase rel. element 1) and front-to-back of "
              "fed states."]
-    if result.get("radials") is not None:
+    rad = result.get("radials")
+    if rad is not None and rad["height_m"] is None:
         notes.append("Neighbouring elements: radials cut where they meet and bonded along the midline "
                      "(each base's loss from its own field; cross terms between elements left out).")
+    elif rad is not None:
+        notes.append(f"Elevated radials ({rad['count']} x {rad['length_m']:g} m at {rad['height_m']:g} m): each "
+                     "element and its own radials are solved as wires over a perfect plane and the soil's loss "
+                     "taken under them; the base impedances and the coupling between elements stay those of the "
+                     "verticals over the perfect plane, and neighbours' radials are not in each other's solution.")
     return notes
