@@ -4,7 +4,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 __all__ = ["Ground", "GROUND_CLASSES", "Feed", "State", "ArrayOption", "Radials", "ForegroundSector",
-           "ArraySpec", "DEFAULT_GROUND_LOSS_OHM"]
+           "ArraySpec", "DEFAULT_GROUND_LOSS_OHM", "USES"]
 
 
 @dataclass(frozen=True, slots=True)
@@ -66,13 +66,19 @@ class State:
         return self.line_m is not None
 
 
+USES = ("transmit", "receive")
+"""What an option is for (``use`` of an option in the site file)."""
+
+
 @dataclass(frozen=True, slots=True)
 class ArrayOption:
     """One way to build the array: a layout, its element positions, its states.
 
     ``positions_m`` are (along, across) in metres in the array frame: along
     points along the baseline bearing, across 90 deg clockwise from it.
-    Element 1 is at the origin.
+    Element 1 is at the origin. ``use`` is "transmit" or "receive": a
+    receive option is scored by directivity over the sky mean, not gain, and
+    gets no match or exposure estimate (see :mod:`lobeplan.antenna.receive`).
     """
 
     name: str
@@ -80,6 +86,11 @@ class ArrayOption:
     spacing_m: float | None
     positions_m: tuple[tuple[float, float], ...]
     states: tuple[State, ...]
+    use: str = "transmit"
+
+    @property
+    def receive(self) -> bool:
+        return self.use == "receive"
 
     @property
     def n_elements(self) -> int:
@@ -137,5 +148,6 @@ class ArraySpec:
     ground_loss_ohm: float | None
     feed: Feed
     options: tuple[ArrayOption, ...]
+    rdf_elevation_deg: float = 20.0  # takeoff angle of the receiving directivity factor
     radials: Radials | None = None
     foreground: tuple[ForegroundSector, ...] = ()

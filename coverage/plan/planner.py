@@ -15,12 +15,17 @@ and w_g the goal weight. The score is thus a mean advantage in dB over one
 vertical. All bearings come from one circular cross-correlation per
 (goal, band, state) (see :mod:`lobeplan.plan.sweep`).
 
+An option with ``use = "receive"`` is scored the same way with directivity
+over the sky mean (:mod:`lobeplan.antenna.receive`) in place of gain, for
+the array and for the reference vertical alike.
+
 Foreground (``[[array.foreground]]``): ground that depends on true bearing
 cannot rotate with the array, so it enters through the need weights. With
 per-class masks M_k (true bearing, elevation; they sum to 1) and the array's
 pattern G_k computed once per ground class k, the score sums one correlation
 per class, sum_k correlate(W M_k, G_k) (see :mod:`lobeplan.plan.sweep`); the
-reference vertical is blended the same way (it stands at the same site).
+reference vertical is blended the same way (it stands at the same site). A
+receive option takes each class's directivity over its own sky mean.
 
 The site argument is duck-typed on :class:`lobeplan.site.Site`.
 """
@@ -33,6 +38,7 @@ import numpy as np
 
 from ..antenna.foreground import class_gains_dbi, foreground_masks, ground_classes
 from ..antenna.pattern import array_pattern, vertical_gain_dbi
+from ..antenna.receive import directivity_dbi
 from ..geo.paths import goal_paths
 from ..geo.regions import region_points
 from ..grid import N_AZIMUTH
@@ -41,7 +47,7 @@ from .sweep import GAIN_FLOOR_DBI, correlate, floored, orientations, spectrum, w
 
 __all__ = ["avoid_credit_cap_db", "GoalBand", "OptionPlan", "Plan", "RankEntry", "GoalRow", "make_plan", "needs_for_site",
            "in_allowed", "distinct_maxima", "score_option", "prepare_needs", "symmetry_order", "goal_rows",
-           "site_foreground", "option_foreground", "true_gain_dbi"]
+           "receive_reference", "as_directivity", "site_foreground", "option_foreground", "true_gain_dbi"]
 
 DISTINCT_DEG = 10.0  # ranking: maxima at least this far apart
 WINDOW_DB = 1.0      # orientation sensitivity: bearings within this of the best
@@ -117,8 +123,14 @@ class OptionPlan:
     best_state: np.ndarray             # (n_goalband, n_theta) index of that state
     state_names: tuple[str, ...]
     patterns: dict = field(repr=False, default_factory=dict)   # (band, state) -> ArrayResult
-    # with [[array.foreground]]: "masks" band -> (n_class, 91, 360) over true bearings and
-    # "gains" (band, state) -> (n_class, 91, 360) in the array frame; empty without
+    # receive options (issue 14) are scored by directivity over the sky mean
+    # (``patterns`` still hold gain, for the maps); the reference is then one
+    # vertical's directivity
+    use: str = "transmit"
+    reference_db: dict | None = field(repr=False, default=None)   # band -> (91,), receive only
+    # with [[array.foreground]]: "masks" band -> (n_class, 91, 360) over true bearings,
+    # "gains" (band, state) -> (n_class, 91, 360) in the array frame (directivity for a
+    # receive option) and "ref" band -> (n_class, 91) for the vertical; empty without
     foreground: dict = field(repr=False, default_factory=dict)
 
 
@@ -214,19 +226,29 @@ def make_plan(site, goal_bands: tuple[GoalBand, ...] | None = None,
     allowed = in_allowed(thetas, orient.allowed_deg)
     bands = {gb.band_name: gb.freq_hz for gb in goal_bands}
     ref = {name: vertical_gain_dbi(spec, f) for name, f in bands.items()}
-    fg = site_foreground(spec, bands)
 
+    fg = site_foreground(spec, bands)
     prepared = prepare_needs(goal_bands, ref, fg)  # shared by every option
 
     method = "direct" if fixed else "fft"
     option_plans = []
+    receive_ref: list = []  # [(reference directivity, prepared needs)], made once if any option receives
     for option in spec.options:
         patterns = {(band_name, s.name): array_pattern(spec, option, s, f)
                     for band_name, f in bands.items() for s in option.states}
+        option_prepared, option_ref, scored = prepared, None, patterns
         opt_fg = option_foreground(spec, option, patterns, fg)
-        values, best_state = score_option(option, patterns, goal_bands, prepared, thetas, orient.step_deg,
+        if option.receive:
+            if not receive_ref:
+                rx = receive_reference(ref)
+                rx_fg = _foreground_directivity(fg)
+                receive_ref.append((rx, prepare_needs(goal_bands, rx, rx_fg), rx_fg))
+            option_ref, option_prepared, rx_fg = receive_ref[0]
+            scored = as_directivity(patterns)
+            opt_fg = _foreground_directivity(opt_fg, rx_fg)
+        values, best_state = score_option(option, scored, goal_bands, option_prepared, thetas, orient.step_deg,
                                           method, opt_fg)
-        weights = np.array([gb.weight * pre["open"] for gb, pre in zip(goal_bands, prepared)])
+        weights = np.array([gb.weight * pre["open"] for gb, pre in zip(goal_bands, option_prepared)])
         open_rows = np.isfinite(values[:, 0]) & (weights > 0)
         if open_rows.any():
             score = (weights[open_rows, None] * values[open_rows]).sum(axis=0) / weights[open_rows].sum()
@@ -235,9 +257,34 @@ def make_plan(site, goal_bands: tuple[GoalBand, ...] | None = None,
         best_theta, best_score, window = _best(thetas, score, allowed)
         option_plans.append(OptionPlan(option.name, option.layout, option.spacing_m, thetas, score,
                                        allowed, best_theta, best_score, window, values, best_state,
-                                       tuple(s.name for s in option.states), patterns, opt_fg))
+                                       tuple(s.name for s in option.states), patterns, option.use, option_ref,
+                                       opt_fg))
     ranking = _ranking(site, goal_bands, option_plans, ref)
     return Plan(tuple(goal_bands), tuple(option_plans), ranking, ref, caveats)
+
+
+# --- receive options (issue 14) ---------------------------------------------
+# On receive the sky's noise sets the signal-to-noise ratio, so a receive
+# option is scored by its directivity over the sky mean (the solid-angle mean
+# gain over the upper hemisphere) against one vertical's directivity, not by
+# gain: a short lossy receiving array is then judged by what it hears, not by
+# the power it would radiate.
+
+def receive_reference(ref: dict) -> dict:
+    """One vertical's directivity over the sky mean per band, (91,) dB each."""
+    return {band: directivity_dbi(g) for band, g in ref.items()}
+
+
+def as_directivity(patterns: dict) -> dict:
+    """The option's patterns with ``gain_dbi`` replaced by directivity over the sky mean."""
+    from dataclasses import replace
+
+    out = {}
+    for k, r in patterns.items():
+        d = directivity_dbi(r.gain_dbi)
+        d.flags.writeable = False
+        out[k] = replace(r, gain_dbi=d)
+    return out
 
 
 def site_foreground(spec, bands: dict) -> dict:
@@ -295,6 +342,21 @@ def _ref_mean_fg(weights: np.ndarray, masks: np.ndarray, ref_k: np.ndarray) -> f
     return float(sum(np.sum(weights * m * floored(g)[:, None]) for m, g in zip(masks, ref_k)) / np.sum(weights))
 
 
+def _foreground_directivity(fg: dict, converted: dict | None = None) -> dict:
+    """A foreground for a receive option: every class's gain as directivity over its sky mean.
+
+    ``converted`` is the site's foreground already converted (its reference is reused).
+    """
+    if not fg:
+        return {}
+    ref = converted["ref"] if converted else {b: np.stack([directivity_dbi(g) for g in r])
+                                              for b, r in fg["ref"].items()}
+    out = {"masks": fg["masks"], "ref": ref}
+    if "gains" in fg:
+        out["gains"] = {k: np.stack([directivity_dbi(g) for g in gk]) for k, gk in fg["gains"].items()}
+    return out
+
+
 def prepare_needs(goal_bands, ref: dict, foreground: dict | None = None) -> list[dict]:
     """Per goal-band pieces every option shares: sums, spectra, reference means.
 
@@ -322,6 +384,8 @@ def prepare_needs(goal_bands, ref: dict, foreground: dict | None = None) -> list
         entry["masks"] = masks
         prepared.append(entry)
     return prepared
+
+
 
 
 def _advantage(weights, w_spec, w_sum, ref_mean, gain_floored, gain_spec, thetas, step_deg, method, masks=None):
@@ -466,6 +530,8 @@ def distinct_maxima(thetas: np.ndarray, score: np.ndarray, allowed: np.ndarray,
 
 
 def goal_rows(plan_option: OptionPlan, goal_bands, theta_index: int, ref: dict) -> tuple[GoalRow, ...]:
+    if plan_option.reference_db is not None:  # a receive option: directivity against the vertical's
+        ref = plan_option.reference_db
     rows = []
     theta = float(plan_option.orientation_deg[theta_index])
     for i, gb in enumerate(goal_bands):
@@ -477,8 +543,14 @@ def goal_rows(plan_option: OptionPlan, goal_bands, theta_index: int, ref: dict) 
             continue
         s_idx = int(plan_option.best_state[i, theta_index])
         s_name = plan_option.state_names[s_idx]
-        g = true_gain_dbi(plan_option, gb.band_name, s_name, theta, GAIN_FLOOR_DBI)
         fg = plan_option.foreground
+        if fg:  # blended per ground class (directivity already, for a receive option)
+            g = true_gain_dbi(plan_option, gb.band_name, s_name, theta, GAIN_FLOOR_DBI)
+        else:
+            g = plan_option.patterns[(gb.band_name, s_name)].gain_dbi
+            if plan_option.reference_db is not None:  # receive: directivity, as it was scored
+                g = directivity_dbi(g)
+            g = _rotate(floored(g), theta)
 
         def ref_of(weights, band=gb.band_name):
             if fg:
