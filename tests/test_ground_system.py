@@ -506,3 +506,15 @@ def test_elevated_radials_in_the_site_and_feed(tmp_path, capsys):
     path.write_text(_SITE.format(array="[array.radials]\ncount = 4\nlength_m = 50\nheight_m = 2.0"))
     assert main(["feed", str(path)]) == 2
     assert "up to 1 wavelength" in capsys.readouterr().err
+
+
+def test_foreground_of_the_arrays_own_ground_changes_nothing_and_half_degrees_agree():
+    # a sector of the same ground as under the array is no foreground at all
+    same = SECTORS.replace('ground = "sea"', 'ground = "average"').replace('ground = "wet"', 'ground = "average"')
+    plain = make_plan(loads(_goal_site(""))).options[0].score_db
+    assert np.max(np.abs(make_plan(loads(_goal_site(same))).options[0].score_db - plain)) < 1e-9
+    # the zero-padded half-degree sweep carries the stacked classes too
+    base = _goal_site(SECTORS)
+    whole = make_plan(loads(base)).options[0].score_db
+    half = make_plan(loads(base.replace('layout = "pair"', 'orientation_step_deg = 0.5\nlayout = "pair"')))
+    assert np.max(np.abs(half.options[0].score_db[::2] - whole)) < 1e-9

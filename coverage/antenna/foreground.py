@@ -172,7 +172,8 @@ def class_gains_dbi(spec: ArraySpec, option: ArrayOption, result: ArrayResult) -
     sol = coupled_elements(spec, option, result.freq_hz)
     out = np.empty((len(classes),) + result.gain_dbi.shape)
     out[0] = result.gain_dbi
-    out[1:] = gains_from_currents_dbi(sol, classes[1:], result.base_current_a, 1.0)
+    if len(classes) > 1:
+        out[1:] = gains_from_currents_dbi(sol, classes[1:], result.base_current_a, 1.0)
     return out
 
 
