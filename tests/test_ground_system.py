@@ -247,7 +247,7 @@ def test_feed_text_says_which_loss_was_used(tmp_path, capsys):
 
 def _fg_spec(sectors):
     s = spec("average", loss_ohm=2.0, radius_m=0.02)
-    opt = option("pair", [forced("fwd", 0, -90)], spacing_m=0.25 * s.height_m * 4)
+    opt = option("pair", [forced("fwd", 0, -90)], spacing_m=s.height_m)  # a quarter wave, as the height
     return replace(s, options=(opt,), foreground=tuple(sectors)), opt
 
 

@@ -222,7 +222,7 @@ def plan_geojson(site, plan) -> dict:
             "kind": "avoid", "region": region, "for_goals": list(dict.fromkeys(entry["goals"]))}))
     features.extend(foreground_features(site))
     st = site.station
-    props = {"kind": "station", "name": st.name, "locator": st.locator}
+    props = {"kind": "station", "name": st.name, "locator": st.locator, "ground": site.array.ground.name}
     if first is not None:
         props.update({"option": first.option, "orientation_deg": _r(first.orientation_deg, 1),
                       "score_db": _r(first.score_db, 2)})

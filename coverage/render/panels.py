@@ -83,9 +83,9 @@ def elevation_figure(site, plan):
             g = op.patterns[(band, s_name)].gain_dbi
             el = int(round(takeoff)) if takeoff is not None else int(np.unravel_index(np.argmax(g), g.shape)[0])
             if op.foreground:  # the blended grid is already over true bearings
-                from ..antenna.foreground import blend_true_bearing
+                from ..plan.planner import true_gain_dbi
 
-                tg = blend_true_bearing(op.foreground["gains"][(band, s_name)], op.foreground["masks"][band], theta)
+                tg = true_gain_dbi(op, band, s_name, theta)
                 bearing = int(np.argmax(tg[el]))
                 cut = tg[:, bearing]
             else:

@@ -212,9 +212,7 @@ def band_scene(site, plan, band_name: str) -> BandScene:
 def _state_row(op, band_name: str, state: str, takeoff_deg: float, theta_deg: float) -> np.ndarray:
     """A state's gain over true bearings at the takeoff angle, the foreground blended."""
     if op.foreground:
-        from ..antenna.foreground import blend_true_bearing
+        from ..plan.planner import true_gain_dbi
 
-        grid = blend_true_bearing(op.foreground["gains"][(band_name, state)], op.foreground["masks"][band_name],
-                                  theta_deg)
-        return grid[int(round(takeoff_deg))]
+        return true_gain_dbi(op, band_name, state, theta_deg)[int(round(takeoff_deg))]
     return true_bearing_row(op.patterns[(band_name, state)].gain_dbi, takeoff_deg, theta_deg)

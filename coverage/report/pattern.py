@@ -14,6 +14,7 @@ from ..errors import UsageError
 from ..grid import AZIMUTH_DEG, ELEVATION_DEG, to_true_bearing
 from ..plan.sweep import floored
 from ..render.scene import key_takeoff_deg
+from .ground import ground_line, ground_summary
 
 __all__ = ["add_arguments", "build", "format_text", "write_files",
            "select_bands", "select_states", "to_true_bearing", "current_rows", "pair", "goal_cells", "NOTES",
@@ -222,7 +223,8 @@ def build(site, args=None) -> dict:
         notes.append(f"foreground: {f.ground.name} from {f.from_m:g} m toward {f.from_deg:g}-{f.to_deg:g} deg "
                      "true; each ray's gain blends the grounds its first Fresnel zone falls on (the vertical's "
                      "reference too).")
-    return {"patterns": out, "notes": notes, "foreground": foreground_json(site.array)}
+    return {"patterns": out, "notes": notes, "foreground": foreground_json(site.array),
+            "ground_system": ground_summary(site)}
 
 
 NOTES = (
@@ -319,6 +321,8 @@ def format_text(result: dict) -> str:
     if result["patterns"]:
         rdf = result["patterns"][0]["rdf_elevation_deg"]
         lines.append(f"RDF at {rdf:g}° takeoff (rdf_elevation_deg).")
+        if "ground_system" in result:
+            lines.append(textwrap.fill(ground_line(result["ground_system"]), 100))
         lines += [textwrap.fill(n, 100, initial_indent="- ", subsequent_indent="  ")
                   for n in result.get("notes", NOTES)]
     return "\n".join(lines) + "\n"

@@ -9,6 +9,7 @@ from pathlib import Path
 
 from ..safety import CAUTIONS
 from ..site import height_caveats
+from .ground import ground_line, ground_summary
 
 __all__ = ["add_arguments", "check_arguments", "build", "build_from_plan", "format_text", "write_files", "run_plan"]
 
@@ -86,6 +87,7 @@ def build_from_plan(site, plan) -> dict:
         "spacing_comparison": comparison,
         "orientation_scores": scores,
         "caveats": list(plan.caveats) + list(height_caveats(site)),
+        "ground_system": ground_summary(site),
         "cautions": list(CAUTIONS),
     }
 
@@ -100,7 +102,10 @@ def _f(x, spec: str = "+6.2f", none: str = "—") -> str:
 
 def format_text(result: dict) -> str:
     st = result["station"]
-    out = [f"Plan for {st['name']} ({st['locator']}), propagation model: {result['model']}", ""]
+    out = [f"Plan for {st['name']} ({st['locator']}), propagation model: {result['model']}"]
+    if "ground_system" in result:
+        out.append(ground_line(result["ground_system"]))
+    out.append("")
     out.append("Best baseline bearings (score: mean advantage over one vertical, dB)")
     out.append(f"  {'#':>2}  {'option':<24} {'bearing':>8} {'score':>7}")
     for i, e in enumerate(result["ranking"], 1):
