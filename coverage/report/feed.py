@@ -10,6 +10,7 @@ from ..antenna.feed import (design_l_network, design_line_lengths, drive_fed, l_
 from ..antenna.pattern import coupled_elements, state_currents, state_drive
 from ..antenna.radial_table import radial_table
 from ..antenna.radials import ground_loss
+from .ground import radials_json, system_text
 from .pattern import current_rows, pair, select_bands
 
 __all__ = ["add_arguments", "build", "format_text", "write_files", "radial_table_json"]
@@ -127,7 +128,7 @@ def build(site, args=None) -> dict:
                 "design": _design(spec, option, band),
                 **radial_table_json(radial_table(spec, option, band.freq_hz)),
             })
-    return {"bands": out, "radials": _radials_json(spec)}
+    return {"bands": out, "radials": radials_json(spec)}
 
 
 def write_files(site, args, result, out_dir) -> list:
@@ -139,16 +140,6 @@ def write_files(site, args, result, out_dir) -> list:
     if not result["bands"]:
         return []
     return [draw_radial_table(result["bands"], Path(out_dir) / "radials.png")]
-
-
-def _radials_json(spec) -> dict | None:
-    r = spec.radials
-    if r is None:
-        return None
-    return {"count": r.count, "length_m": r.length_m, "depth_m": r.depth_m, "height_m": r.height_m,
-            "wire_diameter_mm": r.wire_diameter_mm,
-            "neighbours": ("radials cut where they meet and bonded along the midline" if r.buried
-                           else "each element's radials solved alone")}
 
 
 def _as_built(fed) -> list[dict]:
@@ -224,18 +215,11 @@ def format_text(result: dict) -> str:
     return "\n".join(lines)
 
 
-def _system(rad) -> str:
-    if rad is None:
-        return "ground_loss_ohm"
-    where = f"{rad['depth_m']:g} m deep" if rad["height_m"] is None else f"elevated {rad['height_m']:g} m"
-    return f"{rad['count']} x {rad['length_m']:g} m, {where}"
-
-
 def _table_text(b, rad) -> list[str]:
     ref = b["radial_table_reference"]
     lengths = sorted({r["length_wavelengths"] for r in b["radial_table"]})
     out = [f"  buried radials ({ref['depth_m']:g} m deep, {ref['wire_diameter_mm']:g} mm wire), state "
-           f"{ref['state']!r}; now ({_system(rad)}) {ref['site_loss_ohm']:.2f} ohm, efficiency "
+           f"{ref['state']!r}; now ({system_text(rad)}) {ref['site_loss_ohm']:.2f} ohm, efficiency "
            f"{100 * ref['site_efficiency']:.0f} %:",
            "    count " + "".join(f"{f'{x:g} wavelength':>26}" for x in lengths),
            "          " + "".join(f"{'ohm   eff.  gain dB':>26}" for _ in lengths)]

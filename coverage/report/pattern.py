@@ -14,7 +14,7 @@ from ..errors import UsageError
 from ..grid import AZIMUTH_DEG, ELEVATION_DEG, to_true_bearing
 from ..plan.sweep import floored
 from ..render.scene import key_takeoff_deg
-from .ground import ground_line, ground_summary
+from .ground import foreground_json, ground_line, ground_summary
 
 __all__ = ["add_arguments", "build", "format_text", "write_files",
            "select_bands", "select_states", "to_true_bearing", "current_rows", "pair", "goal_cells", "NOTES",
@@ -130,12 +130,6 @@ def goal_cells(goal_bands, arcs, band_name, true_gain, ref_gain, sky_mean_dbi) -
                         directivity_advantage_db=_r(d - _mean(w, _on_grid(ref_d, w.shape))))
         out.append(cell)
     return out
-
-
-def foreground_json(spec) -> list[dict]:
-    """The site's foreground sectors, JSON-ready (empty without)."""
-    return [{"bearing_deg": [s.from_deg, s.to_deg], "from_m": s.from_m, "ground": s.ground.name}
-            for s in spec.foreground]
 
 
 def true_pattern_dbi(spec, option, res, orientation_deg: float) -> np.ndarray:
