@@ -4,7 +4,9 @@ from __future__ import annotations
 from ..plan.planner import needs_for_site
 from ..progress import ProgressBar
 
-__all__ = ["build", "build_from_goal_bands", "format_text"]
+__all__ = ["SITE_SECTIONS", "build", "build_from_goal_bands", "format_text"]
+
+SITE_SECTIONS = ("station", "band", "goal")  # [array] is not used here
 
 
 def _round(x, nd):
