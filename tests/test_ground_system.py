@@ -518,3 +518,16 @@ def test_foreground_of_the_arrays_own_ground_changes_nothing_and_half_degrees_ag
     whole = make_plan(loads(base)).options[0].score_db
     half = make_plan(loads(base.replace('layout = "pair"', 'orientation_step_deg = 0.5\nlayout = "pair"')))
     assert np.max(np.abs(half.options[0].score_db[::2] - whole)) < 1e-9
+
+
+def test_a_receive_option_with_a_foreground_is_scored_by_directivity_per_class():
+    # directivity is gain over the sky mean: a foreground ground of the same
+    # class as the array's own leaves the receive score as it was, and a sea
+    # sector gives finite scores that differ from it
+    rx = 'use = "receive"\n'
+    plain = make_plan(loads(_goal_site(rx))).options[0]
+    same = make_plan(loads(_goal_site(rx + SECTORS.replace('"sea"', '"average"').replace('"wet"', '"average"'))))
+    assert np.max(np.abs(same.options[0].score_db - plain.score_db)) < 1e-9
+    sea = make_plan(loads(_goal_site(rx + SECTORS))).options[0]
+    assert sea.use == "receive" and np.all(np.isfinite(sea.score_db))
+    assert np.max(np.abs(sea.score_db - plain.score_db)) > 0.05

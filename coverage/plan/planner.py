@@ -387,8 +387,6 @@ def prepare_needs(goal_bands, ref: dict, foreground: dict | None = None) -> list
     return prepared
 
 
-
-
 def _advantage(weights, w_spec, w_sum, ref_mean, gain_floored, gain_spec, thetas, step_deg, method, masks=None):
     """Mean-gain advantage over one vertical at every bearing in ``thetas``.
 
