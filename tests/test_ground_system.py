@@ -531,3 +531,21 @@ def test_a_receive_option_with_a_foreground_is_scored_by_directivity_per_class()
     sea = make_plan(loads(_goal_site(rx + SECTORS))).options[0]
     assert sea.use == "receive" and np.all(np.isfinite(sea.score_db))
     assert np.max(np.abs(sea.score_db - plain.score_db)) > 0.05
+
+
+def test_the_soils_reflection_reaches_the_perfect_plane_as_it_conducts():
+    # (n - 1)/(n + 1) -> 1 as the conductivity grows (Fresnel at normal
+    # incidence, Kraus sec. 12-2): sea water is all but a perfect plane for
+    # the wires' currents (2 %, its factor is 0.99), dry ground is not
+    from lobeplan.antenna.elevated import image_factor
+    from lobeplan.antenna.model import Ground
+
+    assert image_factor(GROUND_CLASSES["perfect"], F_EL_HZ) == 1.0
+    factors = [abs(image_factor(Ground("g", 15.0, s), F_EL_HZ)) for s in (1e-4, 1e-2, 1.0, 100.0)]
+    assert all(a < b for a, b in zip(factors, factors[1:])) and factors[-1] > 0.99
+    h, hub = 0.25 * LAM_EL_M, 0.05 * LAM_EL_M
+    args = (h, 0.02, hub, 4, 0.25 * LAM_EL_M, 1e-3, F_EL_HZ)
+    pec = solve_elevated(*args).input_impedance_ohm
+    sea = solve_elevated(*args, GROUND_CLASSES["sea"]).input_impedance_ohm
+    dry = solve_elevated(*args, GROUND_CLASSES["very-dry"]).input_impedance_ohm
+    assert abs(sea - pec) < 0.02 * abs(pec) < abs(dry - pec)

@@ -14,29 +14,32 @@ G = exp(-jkR)/R with the reduced thin-wire kernel R = sqrt(|r - r'|^2 + a^2);
 the inner integrals use u = asinh(s/rho) along each source segment, which
 makes them smooth near the wire.
 
-The ground enters twice, as in the buried case (:mod:`.radials`). The wires
-are solved over a perfect plane (images: horizontal currents reversed,
-vertical ones kept, charges reversed), and the soil's loss is the
-compensation-theorem integral (Monteath) of Re(Z_g) |H_t|^2 over the ground
-out to half a wavelength, with H_t the tangential field of that solution on
-the plane (twice the field of the wires alone) from the Biot-Savart law with
-retardation. Over a perfect plane the return current under a low wire
-would crowd into a strip as narrow as the wire's height; in real soil it
-spreads over about the soil's complex image depth |1/gamma| (gamma =
-j k0 sqrt(e - 1); Wait's complex image), so the distance to each wire in the
-field's 1/R^3 kernel is taken as sqrt(rho^2 + |1/gamma|^2). This is an
-approximation of ours, stated here: it matters when the radials are lower
-than about that depth (a few metres in average soil at HF, centimetres in
-sea water). The result is a loss resistance at the base, referred to the
+The soil enters twice. The wires see it by its reflection: the images of a
+perfect plane (horizontal currents reversed, vertical ones kept, charges
+reversed) weighted by the soil's normal-incidence reflection (n - 1)/(n + 1),
+n = sqrt(e) (the reflection-coefficient approximation, taken at the
+specular point straight below, where a low wire meets its own image; 1 over
+a perfect ground). And the soil takes power: Re(Z_g) |H_t|^2 / 2 per unit
+area (Leontovich; as in the compensation theorem of the buried case,
+:mod:`.radials`) out to half a wavelength, with H_t the tangential field at
+the surface, (1 + (n - 1)/(n + 1)) times the field of the wires alone, from
+the Biot-Savart law with retardation. Over a perfect plane the return current
+under a low wire would crowd into a strip as narrow as the wire's height; in
+real soil it spreads over about the soil's complex image depth |1/gamma|
+(gamma = j k0 sqrt(e - 1); Wait's complex image), so the distance to each
+wire in the field's 1/R^3 kernel is taken as sqrt(rho^2 + |1/gamma|^2). This
+is an approximation of ours, stated here: it matters when the radials are
+lower than about that depth (a few metres in average soil at HF, centimetres
+in sea water). The result is a loss resistance at the base, referred to the
 base current, which the planner adds in series like the buried radials' loss.
 
 What is *not* modelled (stated where the loss is shown): the coupling
 between elements and the element's base impedance stay those of the
 monopoles over the perfect plane (the main moment method); the radials of
 neighbouring elements are not in each other's solution; the radials' own
-far field is not in the pattern. The currents over a perfect plane are the
-compensation theorem's first approximation: for radials very close to poor
-soil the soil changes them, which is not followed.
+far field is not in the pattern; the reflection is taken at normal incidence
+for every pair of wire segments (exact for a perfect ground, coarsest for
+segments far apart, whose image is seen at grazing incidence).
 
 References
 ----------
@@ -61,7 +64,7 @@ from .model import Ground
 from .mom import C0_M_S, ETA0_OHM
 from .radials import NEAR_ZONE_WAVELENGTHS, soil_surface_impedance_ohm
 
-__all__ = ["ElevatedSolution", "solve_elevated", "elevated_loss_ohm"]
+__all__ = ["ElevatedSolution", "solve_elevated", "elevated_loss_ohm", "image_factor"]
 
 _GO_T, _GO_W = np.polynomial.legendre.leggauss(6)    # test points per segment
 _GI_T, _GI_W = np.polynomial.legendre.leggauss(10)   # source points per segment (in u)
@@ -159,7 +162,7 @@ def _segment_integrals(k, start, end, radius_m, src_start, src_end):
 
 @functools.lru_cache(maxsize=64)
 def solve_elevated(height_m: float, radius_m: float, hub_m: float, count: int, length_m: float,
-                   wire_radius_m: float, freq_hz: float) -> ElevatedSolution:
+                   wire_radius_m: float, freq_hz: float, ground: Ground | None = None) -> ElevatedSolution:
     """Solve one vertical on a hub at ``hub_m`` with ``count`` horizontal radials.
 
     Parameters
@@ -173,6 +176,10 @@ def solve_elevated(height_m: float, radius_m: float, hub_m: float, count: int, l
     length_m, wire_radius_m : float
         Each radial's length and wire radius.
     freq_hz : float
+    ground : Ground, optional
+        The soil below, by its reflection: the images are weighted by
+        image_factor (see :func:`image_factor`); None or a perfect ground
+        gives the exact images of a perfect plane.
 
     Returns
     -------
@@ -212,7 +219,7 @@ def solve_elevated(height_m: float, radius_m: float, hub_m: float, count: int, l
     img = np.array([1.0, 1.0, -1.0])
     a_dir, q_dir = blocks(start, end, t, 1.0)
     # image segment: mirrored points, tangent (tx, ty, -tz); image current = -(shape) along it
-    a_img, q_img = blocks(start * img, end * img, t * img, -1.0)
+    a_img, q_img = blocks(start * img, end * img, t * img, -image_factor(ground, freq_hz))
     a_tot = a_dir + a_img
     q_tot = q_dir + q_img
     n_b = len(bases)
@@ -245,8 +252,29 @@ def solve_elevated(height_m: float, radius_m: float, hub_m: float, count: int, l
     return ElevatedSolution(float(freq_hz), complex(1.0 / i_base), start, end, seg_i)
 
 
+def image_factor(ground: Ground | None, freq_hz: float) -> complex:
+    """Weight of the images against those of a perfect plane: (n - 1) / (n + 1), n = sqrt(e).
+
+    The reflection of the soil at normal incidence (the reflection-coefficient
+    approximation at the specular point straight below, where a low wire meets
+    its own image); 1 for a perfect ground. The tangential H at the surface is
+    then (1 + factor) times the wires' own.
+
+    References
+    ----------
+    E. K. Miller, A. J. Poggio, G. J. Burke and E. S. Selden, "Analysis of wire
+    antennas in the presence of a conducting half-space", Canadian J. Phys.
+    50, 1972 (reflection-coefficient approximation); Fresnel coefficients:
+    Kraus, *Antennas*, sec. 12-2.
+    """
+    if ground is None or ground.perfect:
+        return 1.0 + 0j
+    n = np.sqrt(complex_permittivity(ground, freq_hz) + 0j)
+    return complex((n - 1.0) / (n + 1.0))
+
+
 def _ground_field(sol: ElevatedSolution, points: np.ndarray, k: float, spread_m: float = 0.0) -> np.ndarray:
-    """Tangential H on the plane z = 0 (twice the wires' own), shape (n, 3).
+    """Tangential H of the wires alone on the plane z = 0, shape (n, 3).
 
     ``spread_m`` spreads the peak under a wire over that distance (the soil's
     complex image depth): the distance to a segment's line is taken as
@@ -275,7 +303,7 @@ def _ground_field(sol: ElevatedSolution, points: np.ndarray, k: float, spread_m:
     cross = np.cross(uq[None, :, :], rel)                                   # (n, q, 3)
     h = np.einsum("nq,nqc->nc", integral, cross) / (4.0 * math.pi)
     h[:, 2] = 0.0
-    return 2.0 * h
+    return h
 
 
 @functools.lru_cache(maxsize=64)
@@ -284,13 +312,15 @@ def elevated_loss_ohm(ground: Ground, height_m: float, radius_m: float, hub_m: f
     """Soil loss at the base of one element with elevated radials, ohm.
 
     P = 1/2 int Re(Z_g) |H_t|^2 dS over the ground within half a wavelength,
-    H_t from :func:`solve_elevated` for 1 A at the base; R = 2 P. The
+    H_t the surface field of :func:`solve_elevated` (over this soil) for 1 A
+    at the base; R = 2 P. The
     radials' N-fold symmetry lets one sector stand for all; azimuths cluster
     under the radial, where the field peaks.
 
     References
     ----------
-    Monteath (1951); Wait and Pope (1955) for Z_g.
+    Monteath (1951); Wait and Pope (1955) for Z_g; Miller et al. (1972) for
+    the reflection-coefficient approximation.
     """
     re_zg = soil_surface_impedance_ohm(ground, freq_hz).real
     if re_zg == 0.0:
@@ -301,7 +331,8 @@ def elevated_loss_ohm(ground: Ground, height_m: float, radius_m: float, hub_m: f
     e = complex_permittivity(ground, freq_hz)
     spread = float(abs(1.0 / (1j * 2.0 * math.pi / lam * np.sqrt(e - 1.0 + 0j))))
     k = 2.0 * math.pi / lam
-    sol = solve_elevated(height_m, radius_m, hub_m, count, length_m, wire_radius_m, freq_hz)
+    sol = solve_elevated(height_m, radius_m, hub_m, count, length_m, wire_radius_m, freq_hz, ground)
+    surface = 1.0 + image_factor(ground, freq_hz)  # H at the surface: the wires' own and their weighted image
     outer = NEAR_ZONE_WAVELENGTHS * lam
     u = np.linspace(math.log(radius_m), math.log(outer), 140)
     w_u = np.full(u.size, (u[-1] - u[0]) / (u.size - 1))
@@ -315,7 +346,7 @@ def elevated_loss_ohm(ground: Ground, height_m: float, radius_m: float, hub_m: f
     phi = half_sector * np.sinh(stretch * tt) / math.sinh(stretch)
     w_phi = half_sector * 0.5 * wx * stretch * np.cosh(stretch * tt) / math.sinh(stretch)
     pts = np.stack([np.outer(rho, np.cos(phi)), np.outer(rho, np.sin(phi)), np.zeros((rho.size, phi.size))], -1)
-    h = _ground_field(sol, pts.reshape(-1, 3), k, spread).reshape(rho.size, phi.size, 3)
+    h = surface * _ground_field(sol, pts.reshape(-1, 3), k, spread).reshape(rho.size, phi.size, 3)
     h2 = np.sum(np.abs(h) ** 2, axis=-1)
     area = (w_u * rho * rho)[:, None] * w_phi[None, :]          # rho drho dphi = rho^2 du dphi
     return float(2 * count * re_zg * np.sum(area * h2))       # 2N half-sectors; R = 2P/|I|^2 with P = 1/2 ...

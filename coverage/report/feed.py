@@ -257,7 +257,7 @@ def _footnotes(result) -> list[str]:
                      "(each base's loss from its own field; cross terms between elements left out).")
     elif rad is not None:
         notes.append(f"Elevated radials ({rad['count']} x {rad['length_m']:g} m at {rad['height_m']:g} m): each "
-                     "element and its own radials are solved as wires over a perfect plane and the soil's loss "
-                     "taken under them; the base impedances and the coupling between elements stay those of the "
+                     "element and its own radials are solved as wires, the soil below by its reflection, and the "
+                     "soil's loss taken under them; the base impedances and the coupling between elements stay those of the "
                      "verticals over the perfect plane, and neighbours' radials are not in each other's solution.")
     return notes
