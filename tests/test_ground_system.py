@@ -6,6 +6,7 @@ from dataclasses import replace
 import numpy as np
 import pytest
 
+from lobeplan.antenna.elevated import elevated_loss_ohm, image_factor, solve_elevated
 from lobeplan.antenna.foreground import (class_gains_dbi, current_centroid_m, foreground_masks,
                                          fresnel_interval_m, ground_classes, share_beyond)
 from lobeplan.antenna.ground import reflection_vertical
@@ -431,8 +432,6 @@ def test_reflection_of_the_classes_differs_where_it_should():
 
 # --- elevated radials (wires in the moment method) --------------------------
 
-from lobeplan.antenna.elevated import elevated_loss_ohm, solve_elevated  # noqa: E402
-
 F_EL_HZ = 7.1e6
 LAM_EL_M = C0_M_S / F_EL_HZ
 
@@ -537,7 +536,6 @@ def test_the_soils_reflection_reaches_the_perfect_plane_as_it_conducts():
     # (n - 1)/(n + 1) -> 1 as the conductivity grows (Fresnel at normal
     # incidence, Kraus sec. 12-2): sea water is all but a perfect plane for
     # the wires' currents (2 %, its factor is 0.99), dry ground is not
-    from lobeplan.antenna.elevated import image_factor
     from lobeplan.antenna.model import Ground
 
     assert image_factor(GROUND_CLASSES["perfect"], F_EL_HZ) == 1.0
