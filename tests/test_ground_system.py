@@ -547,3 +547,24 @@ def test_the_soils_reflection_reaches_the_perfect_plane_as_it_conducts():
     sea = solve_elevated(*args, GROUND_CLASSES["sea"]).input_impedance_ohm
     dry = solve_elevated(*args, GROUND_CLASSES["very-dry"]).input_impedance_ohm
     assert abs(sea - pec) < 0.02 * abs(pec) < abs(dry - pec)
+
+
+def test_the_schedule_scores_the_foreground_as_the_plan_does():
+    # the hour-by-hour schedule uses the same blended gain and reference as the
+    # plan: with the geometry model every slot holds the plan's needs, so each
+    # slot's advantage under the goal's best state is the plan's (1e-6 dB,
+    # round-off)
+    from lobeplan.plan.schedule import make_schedule
+
+    site = loads(_goal_site('orientation_deg = 137\n' + SECTORS))
+    plan = make_plan(site)
+    rows = {(g.goal, g.band): g for g in plan.ranking[0].goals}
+    checked = 0
+    for t in make_schedule(site, plan).tracks:
+        row = rows[(t.goal, t.band)]
+        ok = t.state >= 0
+        if row.advantage_db is None or not ok.any():
+            continue
+        assert np.allclose(t.advantage_db[ok], row.advantage_db, atol=1e-6)
+        checked += 1
+    assert checked >= 2
