@@ -11,6 +11,7 @@ import numpy as np
 
 from ..safety import CAUTIONS
 from ..site import element_caveats, height_caveats, mesh_caveats
+from .ground import ground_line, ground_summary
 
 __all__ = ["add_arguments", "check_arguments", "build", "build_from_plan", "format_text", "write_files", "run_plan",
            "score_definition"]
@@ -120,6 +121,7 @@ def build_from_plan(site, plan) -> dict:
         "stakes": stakes_json(site, plan),
         "caveats": list(plan.caveats) + list(height_caveats(site)) + list(mesh_caveats(site))
         + list(element_caveats(site)),
+        "ground_system": ground_summary(site),
         "cautions": list(CAUTIONS),
     }
 
@@ -181,7 +183,10 @@ def _f(x, spec: str = "+6.2f", none: str = "—") -> str:
 
 def format_text(result: dict) -> str:
     st = result["station"]
-    out = [f"Plan for {st['name']} ({st['locator']}), propagation model: {result['model']}", ""]
+    out = [f"Plan for {st['name']} ({st['locator']}), propagation model: {result['model']}"]
+    if "ground_system" in result:
+        out.append(ground_line(result["ground_system"]))
+    out.append("")
     avoid = any(g.get("avoid_advantage_db") is not None for e in result["ranking"] for g in e["goals"])
     out.append("Best baseline bearings (score in dB, defined below)"
                if any(e["orientation_deg"] is not None for e in result["ranking"])
