@@ -34,6 +34,8 @@ import numpy as np
 from ..fileio import atomic_savefig
 from ..grid import AZIMUTH_DEG
 from ..safety import CAUTION_LINE
+from ..geo.regions import _area_m2
+from .fonts import drawable, setup as _font_setup
 from .scene import BandScene
 
 __all__ = ["projection", "save_png_palette", "PAPER_IN", "SPHERE_RADIUS_M", "RIM_KM", "draw_map", "map_figure", "outline_lines",
@@ -172,11 +174,11 @@ def _world(lon_deg: float, lat_deg: float):
     """Projected land fills and land outlines (matplotlib paths) for one station."""
     from shapely.geometry import MultiLineString
 
-    from ..geo.regions import countries
+    from ..geo.regions import basemap_geometries
 
     proj, src = projection(lon_deg, lat_deg)
     fills, lines = [], []
-    for geom in countries().geometry:
+    for geom in basemap_geometries():
         if geom is None or geom.is_empty:
             continue
         fills += _paths(proj, src, geom)
@@ -231,6 +233,7 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
 
     from .. import __version__ as version
 
+    _font_setup()
     w_in, h_in = PAPER_IN[paper]
     fig = plt.figure(figsize=(w_in, h_in))
     fig.patch.set_facecolor("white")
@@ -315,6 +318,7 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
     ax.plot([0], [0], marker="o", markersize=4.5, color="white", markeredgecolor=INK, markeredgewidth=1.2,
             zorder=6)
 
+    labels = []
     for g, spot in label_spots:
         if spot is None:
             continue
@@ -323,18 +327,31 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
         else:
             value = _fmt_db(g.advantage_db)
         x, y, size_m = spot
-        offset = (0.0, 0.0)
-        leader = None
-        if size_m < 3.0e6:  # a small region: put the label beside it, away from the station, with a leader
-            rr = math.hypot(x, y) or 1.0
-            offset = (30.0 * x / rr, 30.0 * y / rr)
-            leader = dict(arrowstyle="-", linewidth=0.6, color=INK, shrinkA=0.0, shrinkB=0.0)
         name = g.name
         if g.geometry.contains(Point(scene.lon_deg, scene.lat_deg)):
             name += " (holds the station)"
-        ax.annotate(f"{name}\n{value}", (x, y), xytext=offset, textcoords="offset points", fontsize=7,
-                    ha="center", va="center", color=INK, zorder=7, linespacing=1.1, path_effects=_halo(2.5),
-                    arrowprops=leader)
+        tiny = _area_m2(g.geometry) < _TINY_M**2
+        if tiny:  # smaller than a few pixels: a marker shows where it is
+            closed = g.advantage_db is None
+            ax.plot([x], [y], marker="o", markersize=4.2, markeredgewidth=0.8, markeredgecolor=INK,
+                    color=CLOSED if closed else cmap(norm(g.advantage_db)), zorder=6.5, gid=f"goal-marker:{g.name}")
+        labels.append((drawable(f"{name}\n{value}"), x, y, size_m < 3.0e6, f"goal-label:{g.name}"))
+    for g in scene.goals:  # long-path goals: a band on the rim at their long-path bearings
+        arc = _long_path_arc(scene, g)
+        if arc is None:
+            continue
+        start, span = arc
+        t_arc = start + np.linspace(0.0, span, max(2, int(span * 2) + 2))
+        rx, ry = _xy(t_arc, np.full_like(t_arc, RIM_KM * 0.975))
+        closed = g.advantage_db is None
+        ax.plot(rx, ry, color=CLOSED if closed else cmap(norm(g.advantage_db)), linewidth=5.5,
+                solid_capstyle="butt", zorder=6.4, gid=f"long-path:{g.name}")
+        ax.plot(rx, ry, color=INK, linewidth=0.5, zorder=6.45)
+        mx, my = _xy(start + span / 2.0, RIM_KM * 0.975)
+        row = next(r for r in g.rows if r[0] == "long")
+        labels.append((drawable(f"{g.name}\nlong path {_fmt_db(row[2])}"), float(mx), float(my), True,
+                       f"long-label:{g.name}"))
+    _place_labels(fig, ax, labels)
 
     _rim(ax)
     _title_block(fig, scene, date_text, w_in, h_in)
@@ -344,6 +361,69 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
              "the station: lines from the centre are great circles, rings are great-circle distance.  "
              f"lobeplan {version}", ha="center", va="center", fontsize=6.2, color="#5f666b")
     return fig
+
+
+# a region of less than (100 km)^2 is a few pixels at most on a map 40,000 km across
+_TINY_M = 100e3
+
+
+def _long_path_arc(scene: BandScene, g) -> tuple[float, float] | None:
+    """(first bearing, clockwise span) in degrees of a goal's long path, or None."""
+    if not any(r[0] == "long" for r in g.rows):
+        return None
+    from ..geo.paths import bearing_arc, goal_paths
+    from ..geo.regions import sample_points
+    from ..geo.station import Station
+
+    lons, lats = sample_points(g.geometry, 400, seed=1)
+    bearing, _ = goal_paths(Station("", scene.lat_deg, scene.lon_deg, ""), lons, lats, "long")
+    start, end, _ = bearing_arc(bearing)
+    return float(start), float((end - start) % 360.0)
+
+
+def _place_labels(fig, ax, labels) -> None:
+    """Draw goal labels so that no two overlap, nor leave the page.
+
+    ``labels`` holds (text, x, y, beside, gid) with x, y in map metres;
+    ``beside`` labels (small regions, markers, rim bands) start beside
+    their point, away from the station. Each label takes the first spot
+    of a fixed list (on the point, then rings of offsets around it, the
+    outward ones first) where its drawn box is clear of every label placed
+    before; a moved label gets a leader line to its point. Regions drawn
+    large go first, so that their labels sit on them.
+    """
+    renderer = fig.canvas.get_renderer()
+    page = fig.bbox
+    placed = []
+
+    def clear(b) -> bool:
+        if b.x0 < page.x0 + 2 or b.y0 < page.y0 + 2 or b.x1 > page.x1 - 2 or b.y1 > page.y1 - 2:
+            return False
+        return all(b.x1 <= o.x0 or b.x0 >= o.x1 or b.y1 <= o.y0 or b.y0 >= o.y1 for o in placed)
+
+    for text, x, y, beside, gid in sorted(labels, key=lambda lab: lab[3]):  # regions first, then the rest
+        rr = math.hypot(x, y)
+        ux, uy = (x / rr, y / rr) if rr > 1.0 else (0.0, 1.0)
+        offsets = [] if beside else [(0.0, 0.0)]
+        for dist in (28.0, 40.0, 55.0, 75.0, 100.0, 130.0, 170.0):
+            for turn in (0, 40, -40, 80, -80, 120, -120, 160, -160, 180):
+                c, s_ = math.cos(math.radians(turn)), math.sin(math.radians(turn))
+                offsets.append((dist * (ux * c - uy * s_), dist * (ux * s_ + uy * c)))
+        note = ax.annotate(text, (x, y), xytext=offsets[0], textcoords="offset points", fontsize=7, ha="center",
+                           va="center", color=INK, zorder=7, linespacing=1.1, path_effects=_halo(2.5),
+                           annotation_clip=False, gid=gid)
+        chosen = offsets[0]
+        for off in offsets:
+            note.set_position(off)
+            if clear(note.get_window_extent(renderer)):
+                chosen = off
+                break
+        note.set_position(chosen)
+        placed.append(note.get_window_extent(renderer))
+        if chosen != (0.0, 0.0):  # moved off its point: a leader line back to it
+            ax.annotate("", (x, y), xytext=chosen, textcoords="offset points", zorder=6.9,
+                        arrowprops=dict(arrowstyle="-", linewidth=0.6, color=INK, shrinkA=0.0, shrinkB=0.0),
+                        annotation_clip=False)
 
 
 def _label_point(proj, src, geom):
@@ -381,7 +461,7 @@ def _title_block(fig, scene: BandScene, date_text: str, w_in: float, h_in: float
         return 1.0 - y_from_top_in / h_in
 
     x0 = 0.6 / w_in
-    fig.text(x0, at(0.55), f"{scene.station_name}", fontsize=15, fontweight="bold", color=INK, va="baseline")
+    fig.text(x0, at(0.55), drawable(f"{scene.station_name}"), fontsize=15, fontweight="bold", color=INK, va="baseline")
     fig.text(1 - x0, at(0.55), scene.band, fontsize=20, fontweight="bold", color=STATE_COLOURS[0],
              ha="right", va="baseline")
     lat = f"{abs(scene.lat_deg):.2f}°{'N' if scene.lat_deg >= 0 else 'S'}"
@@ -390,12 +470,54 @@ def _title_block(fig, scene: BandScene, date_text: str, w_in: float, h_in: float
     score = "" if scene.score_db is None else f"; score {scene.score_db:+.2f} dB over one vertical"
     # a default option name already says layout and spacing ("pair 10.5 m")
     what = scene.option if scene.option.startswith(scene.layout) else f"{scene.option} ({scene.layout}{spacing})"
-    fig.text(x0, at(0.86), f"{scene.locator}  ·  {lat} {lon}  ·  {what}  ·  "
-             f"baseline along {scene.orientation_deg:.1f}°{score}", fontsize=8.3, color=INK, va="baseline")
+    width_in = w_in - 2 * 0.6
+    y = 0.86
+    y = _fit_line(fig, drawable(f"{scene.locator}  ·  {lat} {lon}  ·  {what}  ·  "
+                                f"baseline along {scene.orientation_deg:.1f}°{score}"), x0, y, width_in, h_in)
     how = ("median takeoff angle the goals need on this band" if scene.takeoff_from_needs
            else "no goal opens on this band: elevation of the first state's peak")
-    fig.text(x0, at(1.08), f"Lobes at {scene.takeoff_deg:.0f}° takeoff ({how})  ·  propagation model: "
-             f"{scene.model}  ·  {date_text}", fontsize=8.3, color=INK, va="baseline")
+    _fit_line(fig, f"Lobes at {scene.takeoff_deg:.0f}° takeoff ({how})  ·  propagation model: "
+              f"{scene.model}  ·  {date_text}", x0, y + 0.22, width_in, h_in)
+
+
+def _fit_line(fig, text: str, x0: float, y_in: float, width_in: float, h_in: float,
+              size: float = 8.3, least: float = 7.0) -> float:
+    """Write a subtitle line that fits the page: shrunk down to ``least`` pt,
+    then wrapped at the "·" separators (or words). Returns the top offset
+    (inches) of its last line, so the next line goes below it."""
+    import textwrap
+
+    from matplotlib.font_manager import FontProperties
+    from matplotlib.textpath import TextPath
+
+    family = list(np.atleast_1d(__import__("matplotlib").rcParams["font.family"]))
+
+    def width(t: str, pt: float) -> float:
+        return TextPath((0, 0), t, prop=FontProperties(family=family, size=pt)).get_extents().width / 72.0
+
+    pt = size
+    while pt > least and width(text, pt) > width_in:
+        pt -= 0.1
+    lines = [text]
+    if width(text, pt) > width_in:
+        pieces = text.split("  ·  ")
+        lines = [pieces[0]]
+        for piece in pieces[1:]:
+            trial = lines[-1] + "  ·  " + piece
+            if width(trial, pt) <= width_in:
+                lines[-1] = trial
+            else:
+                lines.append(piece)
+        fitted = []
+        for ln in lines:  # a single piece still too long: by words
+            chars = max(10, int(len(ln) * width_in / max(width(ln, pt), 1e-6)))
+            fitted += textwrap.wrap(ln, chars) if width(ln, pt) > width_in else [ln]
+        lines = fitted
+    step = pt * 1.3 / 72.0
+    for i, ln in enumerate(lines):
+        fig.text(x0, 1.0 - (y_in + i * step) / h_in, ln, fontsize=pt, color=INK, va="baseline",
+                 gid="subtitle" if i == 0 else f"subtitle-{i + 1}")
+    return y_in + (len(lines) - 1) * step
 
 
 def _legends(fig, scene: BandScene, cmap, norm, diam: float, map_bottom: float, w_in: float, h_in: float,

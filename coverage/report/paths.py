@@ -5,6 +5,7 @@ import numpy as np
 
 from ..geo.paths import bearing_arc, goal_paths
 from ..geo.regions import goal_points, region_area
+from .widths import width
 
 __all__ = ["build", "format_text", "goal_path_rows"]
 
@@ -39,15 +40,16 @@ def build(site, args=None) -> dict:
 
 def format_text(result: dict) -> str:
     st = result["station"]
+    w = width(28, (g["name"] for g in result["goals"]))
     lines = [f"Great-circle paths from {st['locator']} ({st['lat_deg']:.4f}, {st['lon_deg']:.4f})",
              "",
-             f"{'goal':<28} {'path':<5} {'bearings (clockwise)':>22} {'median':>7}"
+             f"{'goal':<{w}} {'path':<5} {'bearings (clockwise)':>22} {'median':>7}"
              f" {'nearest':>9} {'median':>9} {'farthest':>9} {'points':>6}",
-             f"{'':<28} {'':<5} {'deg':>22} {'deg':>7} {'km':>9} {'km':>9} {'km':>9}"]
+             f"{'':<{w}} {'':<5} {'deg':>22} {'deg':>7} {'km':>9} {'km':>9} {'km':>9}"]
     for g in result["goals"]:
         b, d = g["bearing_deg"], g["distance_km"]
         arc = f"{b['start']:5.1f} -> {b['end']:5.1f}"
-        lines.append(f"{g['name'][:28]:<28} {g['path']:<5} {arc:>22} {b['median']:7.1f}"
+        lines.append(f"{g['name']:<{w}} {g['path']:<5} {arc:>22} {b['median']:7.1f}"
                      f" {d['min']:9.0f} {d['median']:9.0f} {d['max']:9.0f} {g['points']:6d}")
     lines.append("")
     lines.append("Bearings are true (clockwise from north); long path = bearing + 180 deg, "

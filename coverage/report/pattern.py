@@ -9,6 +9,7 @@ import numpy as np
 from ..antenna.pattern import GAIN_FLOOR_DBI, array_pattern, pattern_figures
 from ..errors import UsageError
 from ..grid import AZIMUTH_DEG, ELEVATION_DEG, to_true_bearing
+from .widths import width
 
 __all__ = ["add_arguments", "build", "format_text", "write_files",
            "select_bands", "select_states", "to_true_bearing", "current_rows", "pair"]
@@ -105,12 +106,14 @@ def _fmt(x, spec="6.1f"):
 
 
 def format_text(result: dict) -> str:
-    lines = [f"{'band':<8} {'state':<22} {'spacing':>7} {'peak':>6} {'az':>6} {'el':>4} "
+    wb = width(8, (p["band"] for p in result["patterns"]))
+    ws = width(22, (p["state"] for p in result["patterns"]))
+    lines = [f"{'band':<{wb}} {'state':<{ws}} {'spacing':>7} {'peak':>6} {'az':>6} {'el':>4} "
              f"{'F/B':>6} {'F/R':>6} {'-3 dB':>6}  currents (rel. element 1)",
-             f"{'':<8} {'':<22} {'m':>7} {'dBi':>6} {'deg':>6} {'deg':>4} {'dB':>6} {'dB':>6} {'deg':>6}"]
+             f"{'':<{wb}} {'':<{ws}} {'m':>7} {'dBi':>6} {'deg':>6} {'deg':>4} {'dB':>6} {'dB':>6} {'deg':>6}"]
     for p in result["patterns"]:
         cur = ", ".join(f"{c['amplitude']:.2f}/{c['phase_deg']:+.0f}" for c in p["element_currents"])
-        lines.append(f"{p['band'][:8]:<8} {p['state'][:22]:<22} {_fmt(p['spacing_m'], '7.2f')} "
+        lines.append(f"{p['band']:<{wb}} {p['state']:<{ws}} {_fmt(p['spacing_m'], '7.2f')} "
                      f"{p['peak_gain_dbi']:6.2f} {p['peak_azimuth_deg']:6.1f} {p['peak_elevation_deg']:4.0f} "
                      f"{_fmt(p['front_to_back_db'])} {_fmt(p['front_to_rear_db'])} "
                      f"{_fmt(p['beamwidth_deg'])}  {cur}")
