@@ -128,6 +128,9 @@ def test_subtitle_fits_the_page(crowded):
     for t in _texts(fig, "subtitle"):
         box = t.get_window_extent(r)
         assert box.x1 <= fig.bbox.x1 and box.x0 >= fig.bbox.x0
+    title = _texts(fig, "title")[0].get_window_extent(r)
+    band = next(t for t in fig.texts if t.get_text() == "20 m").get_window_extent(r)
+    assert title.x1 < band.x0
 
 
 def test_long_path_goal_drawn_at_its_long_path_bearings(crowded):
@@ -197,3 +200,22 @@ def test_tables_never_cut_names(capsys, tmp_path):
     assert main(["paths", str(site)]) == 0
     out = capsys.readouterr().out
     assert "Mauritius Маврикий" in out and "East Australia" in out
+
+
+def test_sixty_goals_lay_out_without_warnings():
+    # 60 goals used to overflow the elevation panel's legend (a layout
+    # warning on stderr); circles so that no data look-up is involved
+    import matplotlib.pyplot as plt
+
+    from lobeplan.render.panels import elevation_figure
+
+    goals = "".join(f'[[goal]]\nname = "Goal {i} with a longish name"\n'
+                    f'region = "circle:{-60 + 2 * i},{-170 + 5.5 * i},800"\n' for i in range(60))
+    text = SITE.split("[[goal]]")[0] + goals + "[propagation]\npoints_per_goal = 10\n"
+    site = loads(text, file="sixty.toml")
+    plan = run_plan(site, True)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        fig = elevation_figure(site, plan)
+        fig.canvas.draw()
+    plt.close(fig)

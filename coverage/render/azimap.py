@@ -461,9 +461,10 @@ def _title_block(fig, scene: BandScene, date_text: str, w_in: float, h_in: float
         return 1.0 - y_from_top_in / h_in
 
     x0 = 0.6 / w_in
-    fig.text(x0, at(0.55), drawable(f"{scene.station_name}"), fontsize=15, fontweight="bold", color=INK, va="baseline")
-    fig.text(1 - x0, at(0.55), scene.band, fontsize=20, fontweight="bold", color=STATE_COLOURS[0],
-             ha="right", va="baseline")
+    band = fig.text(1 - x0, at(0.55), drawable(scene.band), fontsize=20, fontweight="bold", color=STATE_COLOURS[0],
+                    ha="right", va="baseline")
+    band_in = band.get_window_extent(fig.canvas.get_renderer()).width / fig.dpi
+    _fit_title(fig, drawable(f"{scene.station_name}"), x0, at(0.55), w_in - 2 * 0.6 - band_in - 0.3)
     lat = f"{abs(scene.lat_deg):.2f}°{'N' if scene.lat_deg >= 0 else 'S'}"
     lon = f"{abs(scene.lon_deg):.2f}°{'E' if scene.lon_deg >= 0 else 'W'}"
     spacing = "" if scene.spacing_m is None else f", {scene.spacing_m:.2f} m spacing"
@@ -478,6 +479,24 @@ def _title_block(fig, scene: BandScene, date_text: str, w_in: float, h_in: float
            else "no goal opens on this band: elevation of the first state's peak")
     _fit_line(fig, f"Lobes at {scene.takeoff_deg:.0f}° takeoff ({how})  ·  propagation model: "
               f"{scene.model}  ·  {date_text}", x0, y + 0.22, width_in, h_in)
+
+
+def _fit_title(fig, text: str, x0: float, y: float, width_in: float) -> None:
+    """The station name in bold, 15 pt, shrunk to fit beside the band name
+    (down to 9 pt), then wrapped upward at words."""
+    import textwrap
+
+    t = fig.text(x0, y, text, fontsize=15, fontweight="bold", color=INK, va="baseline", gid="title")
+    r = fig.canvas.get_renderer()
+    pt = 15.0
+    while pt > 9.0 and t.get_window_extent(r).width / fig.dpi > width_in:
+        pt -= 0.5
+        t.set_fontsize(pt)
+    w = t.get_window_extent(r).width / fig.dpi
+    if w > width_in:
+        t.set_text("\n".join(textwrap.wrap(text, max(10, int(len(text) * width_in / w)))))
+        t.set_va("bottom")  # the lines grow upward, into the top margin
+        t.set_linespacing(1.05)
 
 
 def _fit_line(fig, text: str, x0: float, y_in: float, width_in: float, h_in: float,
