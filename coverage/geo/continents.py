@@ -19,8 +19,10 @@ parts takes seconds, not the milliseconds a run may spend):
    already labelled parts of its own country, nearest first. A chain of
    islands so follows its own mainland (the Aleutians stay with Alaska, so
    North America), and a far part goes where it lies: the French overseas
-   regions to their own continents, the Indonesian half of New Guinea to
-   Oceania, Hawaii to Oceania (Polynesia).
+   regions to their own continents, the Indonesian half of New Guinea and
+   Easter Island to Oceania. Hawaii stays North America: the nearest
+   placed land is the home part of the U.S. Minor Outlying Islands, which
+   Natural Earth labels North America.
 
 Distances in rule 4 are between boundary points on the sphere (mean
 radius), coasts thinned to about 2 km: enough to order land masses
