@@ -219,3 +219,22 @@ def test_sixty_goals_lay_out_without_warnings():
         fig = elevation_figure(site, plan)
         fig.canvas.draw()
     plt.close(fig)
+
+
+def test_map_png_is_byte_identical_between_runs(tmp_path):
+    # the gallery is regenerated with a fixed --date: the same scene must
+    # give the same bytes (no timestamp, no random ids, a fixed palette)
+    from lobeplan.render.azimap import draw_map
+
+    site = loads(SITE, file="crowded.toml")
+    scene = band_scene(site, run_plan(site, True), "20 m")
+    a = draw_map(scene, tmp_path / "a.png", "2026-05-01", "a4", 40).read_bytes()
+    b = draw_map(scene, tmp_path / "b.png", "2026-05-01", "a4", 40).read_bytes()
+    assert a == b
+
+
+def test_paths_notes_what_an_alternative_name_means(capsys, tmp_path):
+    site = tmp_path / "s.toml"
+    site.write_text(SITE.replace('region = "country:BMU"', 'region = "country:England"'))
+    assert main(["paths", str(site)]) == 0
+    assert "Note: Bermuda: country:England: England is part of the United Kingdom" in capsys.readouterr().out

@@ -4,10 +4,10 @@ from __future__ import annotations
 import numpy as np
 
 from ..geo.paths import bearing_arc, goal_paths
-from ..geo.regions import goal_points, region_area
+from ..geo.regions import goal_points, parse_region, region_area
 from .widths import width
 
-__all__ = ["build", "format_text", "goal_path_rows"]
+__all__ = ["build", "format_text", "goal_path_rows", "region_notes"]
 
 
 def goal_path_rows(site) -> list[dict]:
@@ -30,12 +30,27 @@ def goal_path_rows(site) -> list[dict]:
     return rows
 
 
+def region_notes(site) -> list[str]:
+    """What alternative country names in the goals were taken to mean ("England" -> the United Kingdom)."""
+    notes = []
+    for goal in site.goals:
+        for text in (goal.region, *goal.avoid):
+            reg = parse_region(text)
+            if reg.note:
+                notes.append(f"{goal.name}: {text}: {reg.note}")
+    return list(dict.fromkeys(notes))
+
+
 def build(site, args=None) -> dict:
     st = site.station
-    return {
+    out = {
         "station": {"lat_deg": round(st.lat_deg, 6), "lon_deg": round(st.lon_deg, 6), "locator": st.locator},
         "goals": goal_path_rows(site),
     }
+    notes = region_notes(site)
+    if notes:
+        out["notes"] = notes
+    return out
 
 
 def format_text(result: dict) -> str:
@@ -54,4 +69,5 @@ def format_text(result: dict) -> str:
     lines.append("")
     lines.append("Bearings are true (clockwise from north); long path = bearing + 180 deg, "
                  "distance = 40030 km - short.")
+    lines += [f"Note: {n}" for n in result.get("notes", [])]
     return "\n".join(lines) + "\n"
