@@ -590,6 +590,12 @@ def _legends(fig, scene: BandScene, cmap, norm, diam: float, map_bottom: float, 
         handles.append(Patch(facecolor="none", edgecolor=AVOID, hatch="xxx", label="keep in the rear (avoid)"))
     if any(g.advantage_db is None for g in scene.goals):
         handles.append(Patch(facecolor=CLOSED, hatch="....", label="goal closed on this band"))
+    if any(_area_m2(g.geometry) < _TINY_M**2 for g in scene.goals):
+        handles.append(Line2D([], [], linestyle="none", marker="o", markersize=4.2, markeredgecolor=INK,
+                              color=LAND, label="goal too small to shade: a marker"))
+    if any(r[0] == "long" for g in scene.goals for r in g.rows):
+        handles.append(Line2D([], [], color=RING, linewidth=5.5, solid_capstyle="butt",
+                              label="band on the rim: a goal's long-path bearings"))
     fig.legend(handles=handles, loc="upper left", bbox_to_anchor=(4.55 / w_in, (y_top + 0.28) / h_in),
                fontsize=7.2, frameon=False, title="Switch states (lobes)", title_fontsize=8,
                alignment="left", handlelength=1.6)
