@@ -38,7 +38,7 @@ from .sweep import correlate, floored, orientations, spectrum, weighted_quantile
 
 __all__ = ["avoid_credit_cap_db", "GoalBand", "OptionPlan", "Plan", "RankEntry", "GoalRow", "make_plan", "needs_for_site",
            "in_allowed", "distinct_maxima", "score_option", "prepare_needs", "symmetry_order", "goal_rows",
-           "receive_reference", "as_directivity"]
+           "receive_reference", "as_directivity", "windows_within"]
 
 DISTINCT_DEG = 10.0  # ranking: maxima at least this far apart
 WINDOW_DB = 1.0      # orientation sensitivity: bearings within this of the best
@@ -365,6 +365,44 @@ def _best(thetas, score, allowed):
     while good[(hi + 1) % n] and (hi + 1) % n != lo:
         hi = (hi + 1) % n
     return float(thetas[i]), best, (float(thetas[lo]), float(thetas[hi]))
+
+
+def windows_within(thetas: np.ndarray, score: np.ndarray, allowed: np.ndarray,
+                   db: float = WINDOW_DB) -> tuple[list[tuple[float, float]], bool]:
+    """Every run of allowed bearings within ``db`` of the best score.
+
+    Returns ``(runs, every)``: runs as (first, last) bearing, clockwise, the
+    run holding the best first and then clockwise from it; ``every`` is True
+    when every allowed bearing is within ``db`` (a flat score, or one fixed
+    bearing). A symmetric layout gives one run per copy of its best bearing;
+    each is listed.
+    """
+    ok = allowed & np.isfinite(score)
+    if not ok.any():
+        return [], False
+    best_i = int(np.argmax(np.where(ok, score, -np.inf)))
+    good = ok & (score >= score[best_i] - db)
+    n = thetas.size
+    every = bool((good == ok).all())
+    if good.all():
+        return [(float(thetas[0]), float(thetas[-1]))], True
+    start = int(np.flatnonzero(~good)[0])  # walk the circle from a bearing outside every run
+    runs: list[tuple[int, int]] = []
+    k = 0
+    while k < n:
+        i = (start + k) % n
+        if not good[i]:
+            k += 1
+            continue
+        first = i
+        while k + 1 < n and good[(start + k + 1) % n]:
+            k += 1
+        runs.append((first, (start + k) % n))
+        k += 1
+    # the run holding the best bearing first, then clockwise
+    lead = next(j for j, (a, b) in enumerate(runs) if (best_i - a) % n <= (b - a) % n)
+    runs = runs[lead:] + runs[:lead]
+    return [(float(thetas[a]), float(thetas[b])) for a, b in runs], every
 
 
 def symmetry_order(positions_m) -> int:

@@ -5,7 +5,9 @@ from ..plan.planner import needs_for_site
 from ..progress import ProgressBar
 from .widths import width
 
-__all__ = ["build", "build_from_goal_bands", "format_text"]
+__all__ = ["SITE_SECTIONS", "build", "build_from_goal_bands", "format_text"]
+
+SITE_SECTIONS = ("station", "band", "goal")  # [array] is not used here
 
 
 def _round(x, nd):

@@ -11,7 +11,8 @@ from ..safety import CAUTIONS
 from ..site import height_caveats
 from .widths import width
 
-__all__ = ["add_arguments", "check_arguments", "build", "build_from_plan", "format_text", "write_files", "run_plan"]
+__all__ = ["add_arguments", "check_arguments", "build", "build_from_plan", "format_text", "write_files", "run_plan",
+           "score_definition"]
 
 
 def add_arguments(p) -> None:
@@ -55,7 +56,7 @@ def _goal_row(g) -> dict:
 
 
 def build_from_plan(site, plan) -> dict:
-    from ..plan.planner import goal_rows
+    from ..plan.planner import goal_rows, windows_within
 
     ranking = [{"option": e.option, "orientation_deg": _r(e.orientation_deg, 1), "spacing_m": _r(e.spacing_m, 3),
                 "layout": e.layout, "score_db": _r(e.score_db, 2),
@@ -69,6 +70,10 @@ def build_from_plan(site, plan) -> dict:
                  "best_orientation_deg": _r(op.best_orientation_deg, 1), "score_db": _r(op.best_score_db, 2),
                  "within_1db_deg": [_r(op.window_deg[0], 1), _r(op.window_deg[1], 1)] if op.window_deg else None,
                  "goals": [], "use": op.use}
+        runs, every = windows_within(op.orientation_deg, op.score_db, op.allowed)
+        entry["within_1db_intervals_deg"] = [[_r(a, 1), _r(b, 1)] for a, b in runs]
+        entry["within_1db_every_bearing"] = every
+        entry["swept"] = len(op.orientation_deg) > 1
         if op.best_orientation_deg is not None:
             idx = int(list(op.orientation_deg).index(op.best_orientation_deg))
             entry["goals"] = [_goal_row(g) for g in goal_rows(op, plan.goal_bands, idx, plan.reference_gain_dbi)]
@@ -102,30 +107,46 @@ def _f(x, spec: str = "+6.2f", none: str = "—") -> str:
 def format_text(result: dict) -> str:
     st = result["station"]
     out = [f"Plan for {st['name']} ({st['locator']}), propagation model: {result['model']}", ""]
-    out.append("Best baseline bearings (score: mean advantage over one vertical, dB)")
+    avoid = any(g.get("avoid_advantage_db") is not None for e in result["ranking"] for g in e["goals"])
+    out.append("Best baseline bearings (score in dB, defined below)")
     wo = width(24, [e["option"] for e in result["ranking"]] + [c["option"] for c in result["spacing_comparison"]])
     out.append(f"  {'#':>2}  {'option':<{wo}} {'bearing':>8} {'score':>7}")
     for i, e in enumerate(result["ranking"], 1):
         out.append(f"  {i:>2}  {e['option']:<{wo}} {e['orientation_deg']:>7.1f}° {_f(e['score_db'], '+7.2f')}")
     if not result["ranking"]:
         out.append("  (no allowed bearing serves an open goal)")
+    flat = [c["option"] for c in result["spacing_comparison"]
+            if c.get("swept", True) and c.get("within_1db_every_bearing")]
+    if result["ranking"] and flat:
+        out.append(f"  ({', '.join(flat)}: every allowed bearing is within 1 dB of the best, so the order "
+                   "of its bearings means little)")
+    out += [f"  {line}" for line in score_definition(avoid)]
     if result["ranking"]:
         best = result["ranking"][0]
         wg = width(22, (g["goal"] for g in best["goals"]))
         wb = width(7, (g["band"] for g in best["goals"]))
         wst = width(18, ((g["state"] or "closed") for g in best["goals"]))
         out += ["", f"Per goal, {best['option']} with the baseline along {best['orientation_deg']:.1f}°",
-                f"  {'goal':<{wg}} {'path':<5} {'band':<{wb}} {'state':<{wst}} {'mean':>7} {'p10':>7} {'vs one':>7} {'open':>5}",
-                f"  {'':<{wg}} {'':<5} {'':<{wb}} {'':<{wst}} {'dBi':>7} {'dBi':>7} {'dB':>7} {'':>5}"]
+                f"  {'goal':<{wg}} {'path':<5} {'band':<{wb}} {'state':<{wst}} {'mean':>7} {'p10':>7} {'vs one':>7} {'open':>5}"
+                + (f" {'avoid':>7} {'value':>7}" if avoid else ""),
+                f"  {'':<{wg}} {'':<5} {'':<{wb}} {'':<{wst}} {'dBi':>7} {'dBi':>7} {'dB':>7} {'':>5}"
+                + (f" {'dB':>7} {'dB':>7}" if avoid else "")]
         for g in best["goals"]:
             out.append(f"  {g['goal']:<{wg}} {g['path']:<5} {g['band']:<{wb}} {(g['state'] or 'closed'):<{wst}}"
                        f" {_f(g['mean_gain_dbi'], '7.2f')} {_f(g['p10_gain_dbi'], '7.2f')}"
-                       f" {_f(g['advantage_db'], '+7.2f')} {g['open_fraction']:5.2f}")
+                       f" {_f(g['advantage_db'], '+7.2f')} {g['open_fraction']:5.2f}"
+                       + (f" {_f(g.get('avoid_advantage_db'), '+7.2f')} {_f(g.get('value_db'), '+7.2f')}"
+                          if avoid else ""))
+        out += ["  mean: mean gain over the goal's takeoff-angle needs; p10: 10 % of the need gets less;",
+                "  vs one: mean minus one vertical's; open: share of the need the band serves"]
+        if avoid:
+            out += ["  avoid: advantage over one vertical toward the goal's avoid regions; value: vs one minus",
+                    "  avoid_weight x avoid (credit for a rear below one vertical capped), which the score averages"]
     out += ["", "Spacing options side by side"]
     out.append(f"  {'option':<{wo}} {'spacing':>8} {'best':>7} {'score':>7}  within 1 dB of its best")
     for c in result["spacing_comparison"]:
         sp = "—" if c["spacing_m"] is None else f"{c['spacing_m']:.2f} m"
-        win = "—" if not c["within_1db_deg"] else f"{c['within_1db_deg'][0]:.0f}° to {c['within_1db_deg'][1]:.0f}°"
+        win = _window_text(c, any(o["allowed_orientation_deg"] for o in result["orientation_scores"]))
         best_t = "—" if c["best_orientation_deg"] is None else f"{c['best_orientation_deg']:.1f}°"
         out.append(f"  {c['option']:<{wo}} {sp:>8} {best_t:>7} {_f(c['score_db'], '+7.2f')}  {win}")
     comp = result["spacing_comparison"]
@@ -155,16 +176,42 @@ def format_text(result: dict) -> str:
     return "\n".join(out) + "\n"
 
 
+def score_definition(avoid: bool) -> list[str]:
+    """The score's definition, printed under the ranking (and in the README)."""
+    lines = ["score: the mean of each open goal's value on each band, weighted by goal weight x open share",
+             "  (the share of its takeoff-angle need the band serves), in dB over one vertical of the same",
+             "  height on the same ground; value = advantage over one vertical"]
+    if avoid:
+        lines[-1] += " minus avoid_weight x the advantage"
+        lines.append("  toward the avoid regions (a rear below one vertical earns at most 10 log10 N dB credit, "
+                     "N elements)")
+    return lines
+
+
+def _window_text(c: dict, lot: bool) -> str:
+    """Bearings within 1 dB of the option's best: every run, or what fixed / flat means."""
+    runs = c.get("within_1db_intervals_deg")
+    if c["best_orientation_deg"] is None or not runs:
+        return "—"
+    if not c.get("swept", True):
+        return "fixed bearing, not swept"
+    text = ", ".join(f"{a:.0f}°" if a == b else f"{a:.0f}° to {b:.0f}°" for a, b in runs)
+    if c.get("within_1db_every_bearing"):
+        return f"every allowed bearing ({text})" if lot else "every bearing (the score is flat)"
+    return text
+
+
 def _csv(result: dict) -> str:
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(["rank", "option", "layout", "spacing_m", "orientation_deg", "score_db", "goal", "path", "band",
-                "state", "mean_gain_dbi", "p10_gain_dbi", "advantage_db", "open_fraction"])
+                "state", "mean_gain_dbi", "p10_gain_dbi", "advantage_db", "open_fraction", "avoid_advantage_db",
+                "value_db"])
     for i, e in enumerate(result["ranking"], 1):
         for g in e["goals"]:
             w.writerow([i, e["option"], e["layout"], e["spacing_m"], e["orientation_deg"], e["score_db"], g["goal"],
                         g["path"], g["band"], g["state"], g["mean_gain_dbi"], g["p10_gain_dbi"], g["advantage_db"],
-                        g["open_fraction"]])
+                        g["open_fraction"], g["avoid_advantage_db"], g["value_db"]])
     return buf.getvalue()
 
 
