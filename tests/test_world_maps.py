@@ -238,3 +238,12 @@ def test_paths_notes_what_an_alternative_name_means(capsys, tmp_path):
     site.write_text(SITE.replace('region = "country:BMU"', 'region = "country:England"'))
     assert main(["paths", str(site)]) == 0
     assert "Note: Bermuda: country:England: England is part of the United Kingdom" in capsys.readouterr().out
+
+
+def test_pattern_figures_draw_other_scripts_without_warnings(tmp_path):
+    site = tmp_path / "s.toml"
+    site.write_text(SITE)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        assert main(["pattern", str(site), "--out", str(tmp_path / "out")]) == 0
+    assert any(p.suffix == ".png" for p in (tmp_path / "out").iterdir())
