@@ -41,6 +41,8 @@ VERBS = {
              "writes to ./lobeplan-demo"),
     "plan": ("lobeplan.report.plan", "rank baseline bearings and spacings against the goals; "
              "per-goal switch states, maps and results"),
+    "schedule": ("lobeplan.report.schedule", "which switch state to use on each band, month and UT hour; "
+                 "switch card and schedule figures"),
     "paths": ("lobeplan.report.paths", "bearings and distances (short and long path) to every goal region"),
     "needs": ("lobeplan.report.needs", "takeoff angles each band needs to reach each goal, and the hours "
               "it is open"),

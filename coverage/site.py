@@ -297,7 +297,8 @@ _FEED = ("z0_ohm", "velocity_factor", "loss_db_per_100m_at_10mhz")
 _BAND = ("name", "freq_mhz", "edges_mhz")
 _GOAL = ("name", "region", "weight", "bands", "path", "clip", "avoid", "avoid_weight")
 _PROP = ("model", "month", "year", "solar_flux", "sunspot_number", "hours_utc", "min_elevation_deg",
-         "points_per_goal", "f2_height_km", "e_height_km", "seed", "absorption_limit_db", "fof2_maps", "extra_hop_loss_db")
+         "points_per_goal", "f2_height_km", "e_height_km", "seed", "absorption_limit_db", "fof2_maps", "extra_hop_loss_db",
+         "months", "closed_share")
 _MAP = ("lobe_peak_km", "lobe_floor_db", "ring_step_km")
 
 
@@ -819,10 +820,11 @@ def _propagation(r: _Reader, t: Any) -> PropagationSettings:
     model = r.string(t, "model", key, default="geometry", choices=MODELS)
     if "solar_flux" in t and "sunspot_number" in t:
         raise r.fail(key, "give either solar_flux or sunspot_number, not both")
-    flux = r.number(t, "solar_flux", key, default=None, lo=50.0, hi=400.0,
-                    what="a 12-month mean F10.7 from 50 to 400 sfu")
-    ssn = r.number(t, "sunspot_number", key, default=None, lo=0.0, hi=400.0,
-                   what="a 12-month smoothed sunspot number from 0 to 400")
+    months = _months(r, t, key)
+    flux = _solar(r, t, "solar_flux", key, months, lo=50.0, hi=400.0,
+                  what="a 12-month mean F10.7 from 50 to 400 sfu")
+    ssn = _solar(r, t, "sunspot_number", key, months, lo=0.0, hi=400.0,
+                 what="a 12-month smoothed sunspot number from 0 to 400")
     if model == "climatology" and flux is None and ssn is None:
         raise r.fail(key, "the climatology model needs solar_flux (12-month mean F10.7) or sunspot_number")
     hours = ((0, 24),)
@@ -867,7 +869,48 @@ def _propagation(r: _Reader, t: Any) -> PropagationSettings:
         fof2_maps=r.string(t, "fof2_maps", key, default="ccir", choices=("ccir", "ursi")),
         extra_hop_loss_db=r.number(t, "extra_hop_loss_db", key, default=3.0, lo=0.0, hi=20.0,
                                    what="a loss from 0 to 20 dB per ground reflection beyond the fewest"),
+        months=months,
+        closed_share=r.number(t, "closed_share", key, default=0.05, lo=0.0, hi=1.0, hi_open=True,
+                              what="a share from 0 to below 1 of a goal's point-hours under which it "
+                                   "counts as closed"),
     )
+
+
+def _months(r: _Reader, t: dict, key: str) -> tuple[int, ...]:
+    """``months``: a list of distinct months 1..12 or "all"; () when absent (``month`` is used)."""
+    if "months" not in t:
+        return ()
+    k = f"{key}.months"
+    if "month" in t:
+        raise r.fail(k, "give either month (one month) or months (a list), not both")
+    v = t["months"]
+    if v == "all":
+        return tuple(range(1, 13))
+    if not isinstance(v, list) or not v:
+        raise r.fail(k, f"{_show(v)}: expected a non-empty list of months from 1 to 12, or \"all\"")
+    out = tuple(r.check_number(m, f"{k}[{i + 1}]", lo=1, hi=12, integer=True, what="a month from 1 to 12")
+                for i, m in enumerate(v))
+    seen = set()
+    for i, m in enumerate(out):
+        if m in seen:
+            raise r.fail(f"{k}[{i + 1}]", f"month {m} is listed twice; expected each month once")
+        seen.add(m)
+    return out
+
+
+def _solar(r: _Reader, t: dict, name: str, key: str, months: tuple[int, ...], **limits):
+    """A solar input: one number, or a list with one value per listed month or twelve."""
+    if name not in t or not isinstance(t[name], list):
+        return r.number(t, name, key, default=None, **limits)
+    k = f"{key}.{name}"
+    v = t[name]
+    n = len(months) if months else 1
+    allowed = sorted({n, 12})
+    if len(v) not in allowed:
+        text = " or ".join(str(a) for a in allowed)
+        raise r.fail(k, f"has {len(v)} values; expected one number, or a list of {text} "
+                        f"(one per month of propagation.months{', or one per calendar month' if n != 12 else ''})")
+    return tuple(r.check_number(x, f"{k}[{i + 1}]", **limits) for i, x in enumerate(v))
 
 
 def _map(r: _Reader, t: Any) -> MapSettings:

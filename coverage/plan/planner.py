@@ -33,7 +33,7 @@ from ..antenna.receive import directivity_dbi
 from ..geo.paths import goal_paths
 from ..geo.regions import region_points
 from ..grid import N_AZIMUTH
-from ..propagation.needs import Needs, band_needs, prepare_goal
+from ..propagation.needs import Needs, band_needs, prepare_goal_months
 from .sweep import correlate, floored, orientations, spectrum, weighted_quantile
 
 __all__ = ["avoid_credit_cap_db", "GoalBand", "OptionPlan", "Plan", "RankEntry", "GoalRow", "make_plan", "needs_for_site",
@@ -152,19 +152,28 @@ def needs_for_site(site, progress: Callable[[int, int], None] | None = None
     wanted = {(g.region, g.clip, g.path) for g in site.goals}
     wanted |= {(a, None, g.path) for g in site.goals for a in g.avoid}
     n_total = len(wanted)
+    # a region's prepared months are big (every month's ionosphere at every
+    # point and hour): drop them after the last goal that uses them
+    last_use = {}
+    for gi, g in enumerate(site.goals):
+        for k in [(g.region, g.clip, g.path)] + [(a, None, g.path) for a in g.avoid]:
+            last_use[k] = gi
+    built = [0]
 
     def geometry(text: str, clip, key: str, path: str):
         k = (text, clip, path)
         if k not in geometries:
             lons, lats = region_points(site, text, clip, key)
             bearing, dist = goal_paths(site.station, lons, lats, path)
-            base = len(geometries)
+            base = built[0]
+            built[0] += 1
 
             def inner(done: int, total: int, base=base) -> None:
                 progress(base + (done / total if total else 1.0), n_total)
 
-            geometries[k] = prepare_goal(prop, site.station.lon_deg, site.station.lat_deg, lons, lats,
-                                         bearing, dist, path, progress=inner if progress is not None else None)
+            geometries[k] = prepare_goal_months(prop, site.station.lon_deg, site.station.lat_deg, lons, lats,
+                                                bearing, dist, path,
+                                                progress=inner if progress is not None else None)
         return geometries[k]
 
     out = []
@@ -183,6 +192,8 @@ def needs_for_site(site, progress: Callable[[int, int], None] | None = None
                 avoid = _pool(parts)
             out.append(GoalBand(gi, goal.name, goal.path, band.name, band.freq_hz, goal.weight, needs,
                                 avoid, goal.avoid_weight))
+        for k in [k for k, last in last_use.items() if last == gi]:
+            geometries.pop(k, None)
     return tuple(out), tuple(caveats)
 
 
@@ -193,7 +204,15 @@ def _pool(parts: list[Needs]) -> Needs:
     from dataclasses import replace
 
     w = sum(p.weights for p in parts) / len(parts)
-    return replace(parts[0], weights=w, open_fraction=float(w.sum()))
+    # the sparse per-slot entries pool the same way: all entries, each weight
+    # divided by the number of regions
+    sparse = {}
+    if all(p.slot is not None for p in parts):
+        sparse = dict(slot=np.concatenate([p.slot for p in parts]),
+                      cell=np.concatenate([p.cell for p in parts]),
+                      slot_weight=np.concatenate([p.slot_weight for p in parts]) / len(parts),
+                      open_share_by_slot=sum(p.open_share_by_slot for p in parts) / len(parts))
+    return replace(parts[0], weights=w, open_fraction=float(w.sum()), **sparse)
 
 
 def _ref_mean(weights: np.ndarray, ref_gain_dbi: np.ndarray) -> float:

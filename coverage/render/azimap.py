@@ -550,8 +550,10 @@ def _title_block(fig, scene: BandScene, date_text: str, w_in: float, h_in: float
                                 f"baseline along {scene.orientation_deg:.1f}°{score}"), x0, y, width_in, h_in)
     how = ("median takeoff angle the goals need on this band" if scene.takeoff_from_needs
            else "no goal opens on this band: elevation of the first state's peak")
-    _fit_line(fig, f"Lobes at {scene.takeoff_deg:.0f}° takeoff ({how})  ·  propagation model: "
-              f"{scene.model}  ·  {date_text}", x0, y + 0.22, width_in, h_in)
+    y = _fit_line(fig, f"Lobes at {scene.takeoff_deg:.0f}° takeoff ({how})  ·  {date_text}", x0, y + 0.22,
+                  width_in, h_in)
+    prop = scene.propagation_text or f"propagation model: {scene.model}"
+    _fit_line(fig, drawable(prop[:1].upper() + prop[1:]), x0, y + 0.22, width_in, h_in)
 
 
 def _fit_title(fig, text: str, x0: float, y: float, width_in: float) -> None:
@@ -663,7 +665,9 @@ def _legends(fig, scene: BandScene, cmap, norm, diam: float, map_bottom: float, 
     if scene.avoid:
         handles.append(Patch(facecolor="none", edgecolor=AVOID, hatch="xxx", label="keep in the rear (avoid)"))
     if any(g.advantage_db is None for g in scene.goals):
-        handles.append(Patch(facecolor=CLOSED, hatch="....", label="goal closed on this band"))
+        handles.append(Patch(facecolor=CLOSED, hatch="....",
+                             label=f"goal closed on this band (open < {100 * scene.closed_share:.0f} % of "
+                                   "its point-hours)"))
     if any(_area_m2(g.geometry) < _TINY_M**2 for g in scene.goals):
         handles.append(Line2D([], [], linestyle="none", marker="o", markersize=4.2, markeredgecolor=INK,
                               color=LAND, label="goal too small to shade: a marker"))

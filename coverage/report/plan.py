@@ -57,6 +57,7 @@ def _goal_row(g) -> dict:
 
 def build_from_plan(site, plan) -> dict:
     from ..plan.planner import goal_rows, windows_within
+    from .schedule import schedule_of, schedule_options, schedule_rows
 
     ranking = [{"option": e.option, "orientation_deg": _r(e.orientation_deg, 1), "spacing_m": _r(e.spacing_m, 3),
                 "layout": e.layout, "score_db": _r(e.score_db, 2),
@@ -91,6 +92,9 @@ def build_from_plan(site, plan) -> dict:
         "ranking": ranking,
         "spacing_comparison": comparison,
         "orientation_scores": scores,
+        "months": list(site.propagation.month_list),
+        "schedule_options": schedule_options(plan),
+        "schedule": schedule_rows(schedule_of(site, plan)),
         "caveats": list(plan.caveats) + list(height_caveats(site)),
         "cautions": list(CAUTIONS),
     }
@@ -142,6 +146,10 @@ def format_text(result: dict) -> str:
         if avoid:
             out += ["  avoid: advantage over one vertical toward the goal's avoid regions; value: vs one minus",
                     "  avoid_weight x avoid (credit for a rear below one vertical capped), which the score averages"]
+    if result.get("schedule"):
+        out += ["", f"Hour by hour ({len(result['schedule'])} rows of band x month x UT hour in plan.json "
+                "'schedule'): lobeplan schedule prints them; --out writes schedule.csv, the switch card and "
+                "a schedule figure per band."]
     out += ["", "Spacing options side by side"]
     out.append(f"  {'option':<{wo}} {'spacing':>8} {'best':>7} {'score':>7}  within 1 dB of its best")
     for c in result["spacing_comparison"]:
@@ -223,4 +231,7 @@ def write_files(site, args, result, out_dir) -> list[Path]:
     out = Path(out_dir)
     written = [atomic_write_json(out / "plan.json", result), atomic_write_text(out / "plan.csv", _csv(result))]
     plan = run_plan(site, bool(getattr(args, "json", False)))
+    from .schedule import schedule_of, write_schedule_files
+
+    written += write_schedule_files(site, plan, schedule_of(site, plan), result, args, out)
     return written + write_plan_figures(site, plan, args, out)
