@@ -105,6 +105,13 @@ def test_labels_never_overlap_and_stay_on_the_page(crowded):
     r = fig.canvas.get_renderer()
     boxes = [t.get_window_extent(r) for t in _texts(fig, "goal-label:") + _texts(fig, "long-label:")]
     assert len(boxes) == 11  # ten regions, and the long-path band of one
+    ax = next(a for a in fig.axes if hasattr(a, "projection"))
+    others = [t.get_window_extent(r) for t in ax.texts
+              if t.get_text() and not (t.get_gid() or "").startswith(("goal-label:", "long-label:"))]
+    assert others  # the range-ring and bearing labels
+    for a in boxes:
+        for b in others:
+            assert not (a.x0 < b.x1 - 0.5 and b.x0 < a.x1 - 0.5 and a.y0 < b.y1 - 0.5 and b.y0 < a.y1 - 0.5)
     page = fig.bbox
     for i, a in enumerate(boxes):
         assert a.x0 >= page.x0 - 1 and a.x1 <= page.x1 + 1 and a.y0 >= page.y0 - 1 and a.y1 <= page.y1 + 1

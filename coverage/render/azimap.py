@@ -401,9 +401,9 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
         row = next(r for r in g.rows if r[0] == "long")
         labels.append((drawable(f"{g.name}\nlong path {_fmt_db(row[2])}"), float(mx), float(my), True,
                        f"long-label:{g.name}"))
+    _rim(ax)  # first: goal labels keep clear of the bearing and ring labels
     _place_labels(fig, ax, labels)
 
-    _rim(ax)
     _title_block(fig, scene, date_text, w_in, h_in)
     _legends(fig, scene, cmap, norm, diam, bottom, w_in, h_in, Rectangle)
     fig.text(0.5, 0.42 / h_in, CAUTION_LINE, ha="center", va="center", fontsize=7.2, color="#5b2a1a")
@@ -460,12 +460,13 @@ def _place_labels(fig, ax, labels) -> None:
     their point, away from the station. Each label takes the first spot
     of a fixed list (on the point, then rings of offsets around it, the
     outward ones first) where its drawn box is clear of every label placed
-    before; a moved label gets a leader line to its point. Regions drawn
-    large go first, so that their labels sit on them.
+    before (and of the ring and bearing labels already drawn); a moved
+    label gets a leader line to its point. Regions drawn large go first,
+    so that their labels sit on them.
     """
     renderer = fig.canvas.get_renderer()
     page = fig.bbox
-    placed = []
+    placed = [t.get_window_extent(renderer) for t in ax.texts if t.get_text()]  # ring and rim labels
 
     def clear(b) -> bool:
         if b.x0 < page.x0 + 2 or b.y0 < page.y0 + 2 or b.x1 > page.x1 - 2 or b.y1 > page.y1 - 2:
