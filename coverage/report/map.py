@@ -11,6 +11,7 @@ import re
 from pathlib import Path
 
 from ..errors import UsageError
+from .widths import width
 
 __all__ = ["add_arguments", "check_arguments", "default_out", "build", "format_text", "write_files",
            "map_date", "FORMATS", "PAPERS", "DEFAULT_DPI", "map_file_name", "write_plan_figures"]
@@ -122,11 +123,13 @@ def format_text(result: dict) -> str:
     st = result["station"]
     out = [f"Maps for {st['name']} ({st['locator']}): {result['option']}, baseline along "
            f"{result['orientation_deg']:.1f}°", ""]
-    out.append(f"  {'band':<8} {'takeoff':>7}  {'file':<24} lobes (peak dBi toward bearing)")
+    w = width(8, (m["band"] for m in result["maps"]))
+    wf = width(24, (m["file"] for m in result["maps"]))
+    out.append(f"  {'band':<{w}} {'takeoff':>7}  {'file':<{wf}} lobes (peak dBi toward bearing)")
     for m in result["maps"]:
         lobes = ", ".join(f"{lo['state']} {lo['peak_gain_dbi']:+.1f} @ {lo['peak_bearing_deg']:.0f}°"
                           for lo in m["lobes"])
-        out.append(f"  {m['band'][:8]:<8} {m['takeoff_deg']:>6.0f}°  {m['file']:<24} {lobes}")
+        out.append(f"  {m['band']:<{w}} {m['takeoff_deg']:>6.0f}°  {m['file']:<{wf}} {lobes}")
     return "\n".join(out) + "\n"
 
 
