@@ -13,6 +13,7 @@ score against baseline bearing.
 """
 from __future__ import annotations
 
+import math
 from pathlib import Path
 
 import numpy as np
@@ -21,6 +22,7 @@ from ..fileio import atomic_savefig
 from ..grid import ELEVATION_DEG
 from .azimap import INK, STATE_COLOURS
 from ..antenna.pattern import lobe_bearings_deg
+from .fonts import drawable, setup as _font_setup
 from .scene import chosen_option, key_takeoff_deg, true_bearing_row
 
 __all__ = ["elevation_figure", "orientation_figure", "draw_elevation_panel", "draw_orientation_panel",
@@ -37,6 +39,7 @@ def _pyplot():
     matplotlib.use("Agg", force=False)
     import matplotlib.pyplot as plt
 
+    _font_setup()
     return plt
 
 
@@ -46,6 +49,7 @@ def elevation_figure(site, plan):
     op, theta, _ = chosen_option(plan)
     bands = [b.name for b in site.bands]
     fig, axes = plt.subplots(len(bands), 1, figsize=(10.0, 0.6 + 2.5 * len(bands)), squeeze=False)
+    widest = 1
     for ax, band in zip(axes[:, 0], bands):
         takeoff = key_takeoff_deg(plan.goal_bands, band)
         need_ax = ax.twinx()
@@ -117,12 +121,17 @@ def elevation_figure(site, plan):
         ax.set_title(f"{band}: {op.option}, baseline along {theta:.1f}°", fontsize=9, loc="left", color=INK)
         h1, l1 = ax.get_legend_handles_labels()
         h2, l2 = need_ax.get_legend_handles_labels()
-        ax.legend(h1 + h2, l1 + l2, fontsize=6.8, loc="upper left", bbox_to_anchor=(1.08, 1.0), frameon=False)
+        # many goals: more legend columns (about 16 entries fit beside a row), and a wider page for them
+        ncol = max(1, math.ceil(len(l1 + l2) / 16))
+        widest = max(ncol, widest)
+        ax.legend(h1 + h2, [drawable(t) for t in l1 + l2], fontsize=6.8, loc="upper left", bbox_to_anchor=(1.08, 1.0),
+                  frameon=False, ncol=ncol)
     axes[-1, 0].set_xlabel("elevation (takeoff angle), degrees", fontsize=8)
     from .scene import propagation_text
 
-    fig.suptitle(f"{site.station.name}: elevation cuts through each state's beam, with the goals' needs\n"
-                 f"{propagation_text(site)}", fontsize=10, color=INK)
+    fig.suptitle(drawable(f"{site.station.name}: elevation cuts through each state's beam, with the goals' needs\n"
+                          f"{propagation_text(site)}"), fontsize=10, color=INK)
+    fig.set_figwidth(10.0 + 2.6 * (widest - 1))
     fig.tight_layout(rect=(0, 0, 1, 0.98))
     return fig
 
@@ -178,7 +187,7 @@ def orientation_figure(site, plan):
     ax.tick_params(axis="y", labelsize=7)
     ax.set_rlabel_position(100)
     ax.grid(True, color="#cfcfcf", linewidth=0.5)
-    fig.text(0.5, 0.955, f"{site.station.name}: score against baseline bearing", ha="center", fontsize=10.5,
+    fig.text(0.5, 0.955, drawable(f"{site.station.name}: score against baseline bearing"), ha="center", fontsize=10.5,
              color=INK, fontweight="bold")
     fig.text(0.5, 0.925, "radius: mean advantage over one vertical, dB (weighted over the goals); "
              "\u2605 best allowed bearing", ha="center", fontsize=7.5, color=INK)

@@ -11,6 +11,7 @@ import re
 from pathlib import Path
 
 from ..errors import UsageError
+from .widths import width
 
 __all__ = ["add_arguments", "check_arguments", "default_out", "build", "format_text", "write_files",
            "map_date", "FORMATS", "PAPERS", "DEFAULT_DPI", "map_file_name", "write_plan_figures"]
@@ -125,13 +126,15 @@ def format_text(result: dict) -> str:
     where = ("one vertical, no baseline" if result["orientation_deg"] is None
              else f"baseline along {result['orientation_deg']:.1f}°")
     out = [f"Maps for {st['name']} ({st['locator']}): {result['option']}, {where}", ""]
-    out.append(f"  {'band':<8} {'takeoff':>7}  {'file':<24} lobes (peak dBi toward bearing)")
+    w = width(8, (m["band"] for m in result["maps"]))
+    wf = width(24, (m["file"] for m in result["maps"]))
+    out.append(f"  {'band':<{w}} {'takeoff':>7}  {'file':<{wf}} lobes (peak dBi toward bearing)")
     for m in result["maps"]:
         lobes = ", ".join(f"{lo['state']}{'' if lo['kind'] != 'as-built' else ' (as built)'} "
                           f"{lo['peak_gain_dbi']:+.1f} @ "
                           + ("/".join(f"{b:.0f}°" for b in lo["lobes_deg"]) or "all round")
                           for lo in m["lobes"])
-        out.append(f"  {m['band'][:8]:<8} {m['takeoff_deg']:>6.0f}°  {m['file']:<24} {lobes}")
+        out.append(f"  {m['band']:<{w}} {m['takeoff_deg']:>6.0f}°  {m['file']:<{wf}} {lobes}")
     built = sorted({lo["design_band"] for m in result["maps"] for lo in m["lobes"] if lo["kind"] == "as-built"})
     if built:
         out.append("")

@@ -12,6 +12,7 @@ import numpy as np
 from ..safety import CAUTIONS
 from ..site import element_caveats, height_caveats, mesh_caveats
 from .ground import ground_line, ground_summary
+from .widths import width
 
 __all__ = ["add_arguments", "check_arguments", "build", "build_from_plan", "format_text", "write_files", "run_plan",
            "score_definition"]
@@ -191,10 +192,11 @@ def format_text(result: dict) -> str:
     out.append("Best baseline bearings (score in dB, defined below)"
                if any(e["orientation_deg"] is not None for e in result["ranking"])
                else "Score in dB, defined below (one vertical has no baseline to turn)")
-    out.append(f"  {'#':>2}  {'option':<24} {'bearing':>8} {'score':>7}")
+    wo = width(24, [e["option"] for e in result["ranking"]] + [c["option"] for c in result["spacing_comparison"]])
+    out.append(f"  {'#':>2}  {'option':<{wo}} {'bearing':>8} {'score':>7}")
     for i, e in enumerate(result["ranking"], 1):
         where = "no baseline" if e["orientation_deg"] is None else f"{e['orientation_deg']:>7.1f}°"
-        out.append(f"  {i:>2}  {e['option'][:24]:<24} {where:>8} {_f(e['score_db'], '+7.2f')}")
+        out.append(f"  {i:>2}  {e['option']:<{wo}} {where:>8} {_f(e['score_db'], '+7.2f')}")
     if not result["ranking"]:
         out.append("  (no allowed bearing serves an open goal)")
     flat = [c["option"] for c in result["spacing_comparison"]
@@ -208,13 +210,16 @@ def format_text(result: dict) -> str:
         along = ("one vertical (no baseline)" if best["orientation_deg"] is None
                  else f"with the baseline along {best['orientation_deg']:.1f}°")
         how = {"as-built": "as built", "forced": "forced", "fed": "own lines", None: ""}
+        wg = width(22, (g["goal"] for g in best["goals"]))
+        wb = width(7, (g["band"] for g in best["goals"]))
+        wst = width(18, ((g["state"] or "closed") for g in best["goals"]))
         out += ["", f"Per goal, {best['option']} {along}",
-                f"  {'goal':<22} {'path':<5} {'band':<7} {'state':<18} {'mean':>7} {'p10':>7} {'vs one':>7} {'open':>5}"
+                f"  {'goal':<{wg}} {'path':<5} {'band':<{wb}} {'state':<{wst}} {'mean':>7} {'p10':>7} {'vs one':>7} {'open':>5}"
                 f"  {'currents':<9}" + (f" {'avoid':>7} {'value':>7}" if avoid else ""),
-                f"  {'':<22} {'':<5} {'':<7} {'':<18} {'dBi':>7} {'dBi':>7} {'dB':>7} {'':>5}  {'':<9}"
+                f"  {'':<{wg}} {'':<5} {'':<{wb}} {'':<{wst}} {'dBi':>7} {'dBi':>7} {'dB':>7} {'':>5}  {'':<9}"
                 + (f" {'dB':>7} {'dB':>7}" if avoid else "")]
         for g in best["goals"]:
-            out.append(f"  {g['goal'][:22]:<22} {g['path']:<5} {g['band'][:7]:<7} {(g['state'] or 'closed')[:18]:<18}"
+            out.append(f"  {g['goal']:<{wg}} {g['path']:<5} {g['band']:<{wb}} {(g['state'] or 'closed'):<{wst}}"
                        f" {_f(g['mean_gain_dbi'], '7.2f')} {_f(g['p10_gain_dbi'], '7.2f')}"
                        f" {_f(g['advantage_db'], '+7.2f')} {g['open_fraction']:5.2f}  {how.get(g.get('kind'), ''):<9}"
                        + (f" {_f(g.get('avoid_advantage_db'), '+7.2f')} {_f(g.get('value_db'), '+7.2f')}"
@@ -232,22 +237,26 @@ def format_text(result: dict) -> str:
                 "'schedule'): lobeplan schedule prints them; --out writes schedule.csv, the switch card and "
                 "a schedule figure per band."]
     out += ["", "Spacing options side by side"]
-    out.append(f"  {'option':<24} {'spacing':>8} {'best':>7} {'score':>7}  within 1 dB of its best")
+    out.append(f"  {'option':<{wo}} {'spacing':>8} {'best':>7} {'score':>7}  within 1 dB of its best")
     for c in result["spacing_comparison"]:
         sp = "—" if c["spacing_m"] is None else f"{c['spacing_m']:.2f} m"
         win = _window_text(c, any(o["allowed_orientation_deg"] for o in result["orientation_scores"]))
         best_t = "—" if c["best_orientation_deg"] is None else f"{c['best_orientation_deg']:.1f}°"
-        out.append(f"  {c['option'][:24]:<24} {sp:>8} {best_t:>7} {_f(c['score_db'], '+7.2f')}  {win}")
+        out.append(f"  {c['option']:<{wo}} {sp:>8} {best_t:>7} {_f(c['score_db'], '+7.2f')}  {win}")
     comp = result["spacing_comparison"]
     if len(comp) > 1 and all(c["goals"] for c in comp):
         out += ["", "  advantage over one vertical at each option's best bearing, dB"]
-        head = "  " + f"{'goal':<22} {'band':<7}" + "".join(f" {c['option'][:16]:>16}" for c in comp)
+        labels = [g["goal"] + (" (long)" if g["path"] == "long" else "") for g in comp[0]["goals"]]
+        wl = width(22, labels)
+        wb2 = width(7, (g["band"] for g in comp[0]["goals"]))
+        wc = [width(16, [c["option"]]) for c in comp]
+        head = "  " + f"{'goal':<{wl}} {'band':<{wb2}}" + "".join(f" {c['option']:>{n}}" for c, n in zip(comp, wc))
         out.append(head)
         for rows in zip(*(c["goals"] for c in comp)):
             g0 = rows[0]
             label = g0["goal"] + (" (long)" if g0["path"] == "long" else "")
-            out.append("  " + f"{label[:22]:<22} {g0['band'][:7]:<7}"
-                       + "".join(f" {_f(g['advantage_db'], '+16.2f')}" for g in rows))
+            out.append("  " + f"{label:<{wl}} {g0['band']:<{wb2}}"
+                       + "".join(f" {_f(g['advantage_db'], f'+{n}.2f')}" for g, n in zip(rows, wc)))
     receive = [c["option"] for c in result["spacing_comparison"] if c.get("use") == "receive"]
     if receive:
         out += ["", "Scored by directivity, not gain (use = \"receive\"): " + ", ".join(receive) + ". For these "
