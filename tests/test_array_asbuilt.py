@@ -290,3 +290,13 @@ def test_a_network_that_misses_its_currents_is_said_plainly():
     missed = dict(net, meets=False, current_error=0.4)
     text = "\n".join(feed_verb._network_text(missed))
     assert "no recognised form meets the wanted currents" in text and "0.40" in text
+
+
+def test_feed_suggest_out_writes_the_toml(tmp_path):
+    from lobeplan.cli import main
+
+    p = tmp_path / "site.toml"
+    p.write_text(PAIR.format(extra="", state_extra=""))
+    assert main(["feed", str(p), "--suggest", "gain", "--band", "40 m", "--out", str(tmp_path / "o")]) == 0
+    text = (tmp_path / "o" / "suggestions.toml").read_text()
+    assert "[[array.state]]" in text and "phase_deg" in text

@@ -324,6 +324,10 @@ def write_files(site, args, result, out_dir) -> list:
 
     from ..render.radials import draw_radial_table
 
+    if "suggestions" in result:   # --suggest: the suggestions themselves, as the TOML they print
+        from ..fileio import atomic_write_text
+
+        return [atomic_write_text(Path(out_dir) / "suggestions.toml", format_text(result))]
     if not result["bands"]:
         return []
     return [draw_radial_table(result["bands"], Path(out_dir) / "radials.png")]
