@@ -118,7 +118,8 @@ def elevation_figure(site, plan):
         ax.set_ylabel("gain, dBi", fontsize=8)
         ax.tick_params(labelsize=7)
         ax.grid(True, color="#d8d8d8", linewidth=0.5)
-        ax.set_title(f"{band}: {op.option}, baseline along {theta:.1f}°", fontsize=9, loc="left", color=INK)
+        where = "one vertical, no baseline" if op.layout == "single" else f"baseline along {theta:.1f}°"
+        ax.set_title(f"{band}: {op.option}, {where}", fontsize=9, loc="left", color=INK)
         h1, l1 = ax.get_legend_handles_labels()
         h2, l2 = need_ax.get_legend_handles_labels()
         # many goals: more legend columns (about 16 entries fit beside a row), and a wider page for them

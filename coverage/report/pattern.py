@@ -291,8 +291,10 @@ def _block_text(rows: list[dict]) -> list[str]:
     ws = fit_width(18, (p["state"] for p in rows))
     lobe_texts = [", ".join(f"{lobe['bearing_deg']:.0f}°" for lobe in p["lobes"]) or "none (omni)" for p in rows]
     wl = fit_width(22, lobe_texts)
-    lines = [f"{first['band']}, {first['option']}: baseline along {first['orientation_deg']:.1f}° "
-             f"({_WHERE[first['orientation_from']]})" + (", receive option" if receive else ""),
+    single = len(first["element_currents"]) == 1   # issue 10: one vertical has no baseline
+    lines = [f"{first['band']}, {first['option']}: " + ("one vertical, no baseline" if single else
+             f"baseline along {first['orientation_deg']:.1f}° ({_WHERE[first['orientation_from']]})")
+             + (", receive option" if receive else ""),
              "  toward each goal: " + ("directivity over the sky mean, dB, and vs 1 vertical's" if receive
                                        else "gain at its needed angles, dBi, and vs 1 vertical, dB")]
     lines.append(f"  {'goal':<{wg}} {'path':<5} {'bearings':>10} {'takeoff':>8}"
