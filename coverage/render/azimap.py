@@ -36,7 +36,7 @@ from ..grid import AZIMUTH_DEG
 from ..safety import CAUTION_LINE
 from ..geo.regions import _area_m2
 from .fonts import drawable, setup as _font_setup
-from .scene import BandScene
+from .scene import BandScene, kind_label
 
 __all__ = ["projection", "save_png_palette", "display_geometry", "PAPER_IN", "SPHERE_RADIUS_M", "RIM_KM", "draw_map", "map_figure", "outline_lines",
            "ADVANTAGE_RANGE_DB", "STATE_COLOURS"]
@@ -350,12 +350,14 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
         k += 1
 
     # the array baseline: a great circle through the station, bold near it
+    # (one vertical has none)
     th = scene.orientation_deg
-    x, y = _xy([th + 180.0, th], [RIM_KM, RIM_KM])
-    ax.plot([x[0], 0, x[1]], [y[0], 0, y[1]], color=INK, linewidth=0.6, linestyle=(0, (6, 3)), zorder=3.5)
-    bx, by = _xy([th + 180.0, th], [1100.0, 1100.0])
-    ax.plot(bx, by, color=INK, linewidth=2.6, solid_capstyle="butt", zorder=5, gid="baseline")
-    ax.plot([bx[1]], [by[1]], marker=(3, 0, -th), markersize=7, color=INK, zorder=5)
+    if scene.layout != "single":
+        x, y = _xy([th + 180.0, th], [RIM_KM, RIM_KM])
+        ax.plot([x[0], 0, x[1]], [y[0], 0, y[1]], color=INK, linewidth=0.6, linestyle=(0, (6, 3)), zorder=3.5)
+        bx, by = _xy([th + 180.0, th], [1100.0, 1100.0])
+        ax.plot(bx, by, color=INK, linewidth=2.6, solid_capstyle="butt", zorder=5, gid="baseline")
+        ax.plot([bx[1]], [by[1]], marker=(3, 0, -th), markersize=7, color=INK, zorder=5)
 
     _foreground(ax, scene)
 
@@ -572,8 +574,9 @@ def _title_block(fig, scene: BandScene, date_text: str, w_in: float, h_in: float
     what = scene.option if scene.option.startswith(scene.layout) else f"{scene.option} ({scene.layout}{spacing})"
     width_in = w_in - 2 * 0.6
     y = 0.86
+    where = "one vertical, no baseline" if scene.layout == "single" else f"baseline along {scene.orientation_deg:.1f}°"
     y = _fit_line(fig, drawable(f"{scene.locator}  ·  {lat} {lon}  ·  {what}  ·  "
-                                f"baseline along {scene.orientation_deg:.1f}°{score}"), x0, y, width_in, h_in)
+                                f"{where}{score}"), x0, y, width_in, h_in)
     how = ("median takeoff angle the goals need on this band" if scene.takeoff_from_needs
            else "no goal opens on this band: elevation of the first state's peak")
     y = _fit_line(fig, f"Lobes at {scene.takeoff_deg:.0f}° takeoff ({how})  ·  {date_text}", x0, y + 0.22,
@@ -641,6 +644,13 @@ def _fit_line(fig, text: str, x0: float, y_in: float, width_in: float, h_in: flo
     return y_in + (len(lines) - 1) * step
 
 
+def _short_kind(lobe) -> str:
+    """Legend wording of how a state's currents are made (the long form is :func:`kind_label`)."""
+    if lobe.kind == "as-built":
+        return f"{lobe.design_band} network"
+    return kind_label(lobe.kind, lobe.design_band)
+
+
 def _legends(fig, scene: BandScene, cmap, norm, diam: float, map_bottom: float, w_in: float, h_in: float,
              Rectangle) -> None:
     from matplotlib.cm import ScalarMappable
@@ -685,9 +695,13 @@ def _legends(fig, scene: BandScene, cmap, norm, diam: float, map_bottom: float, 
     handles = []
     for i, lobe in enumerate(scene.lobes):
         col = STATE_COLOURS[i % len(STATE_COLOURS)]
+        how = "one element" if scene.layout == "single" else _short_kind(lobe)
+        toward = ("all round" if not lobe.lobes_deg
+                  else "toward " + "/".join(f"{b:.0f}°" for b in lobe.lobes_deg))
         handles.append(Patch(facecolor=col, alpha=0.45, edgecolor=col,
-                             label=f"{lobe.state}: {lobe.peak_gain_dbi:.1f} dBi toward {lobe.peak_bearing_deg:.0f}°"))
-    handles.append(Line2D([], [], color=INK, linewidth=2.6, label=f"baseline, along {scene.orientation_deg:.0f}°"))
+                             label=f"{lobe.state} ({how}): {lobe.peak_gain_dbi:.1f} dBi {toward}"))
+    if scene.layout != "single":
+        handles.append(Line2D([], [], color=INK, linewidth=2.6, label=f"baseline, along {scene.orientation_deg:.0f}°"))
     if scene.avoid:
         handles.append(Patch(facecolor="none", edgecolor=AVOID, hatch="xxx", label="keep in the rear (avoid)"))
     if any(g.advantage_db is None for g in scene.goals):

@@ -297,8 +297,10 @@ def band_figure(rows: list[dict], station_name: str = "", foreground=()):
     where = {"plan": "the plan's best bearing", "site": "from the site file",
              "none": "no goal is open"}.get(first.get("orientation_from"), "")
     head = f"{station_name}: " if station_name else ""
-    fig.suptitle(drawable(f"{head}{first['band']}, {first['option']}, baseline along {first['orientation_deg']:.1f}° "
-                          f"({where})" + ("; receive option" if receive else "")), fontsize=10.5, color=INK, x=0.06,
+    along = ("one vertical, no baseline" if len(first.get("element_currents", ())) == 1
+             else f"baseline along {first['orientation_deg']:.1f}° ({where})")
+    fig.suptitle(drawable(f"{head}{first['band']}, {first['option']}, {along}"
+                          + ("; receive option" if receive else "")), fontsize=10.5, color=INK, x=0.06,
                  ha="left")
     what = ("advantage in directivity (over the sky mean) over one vertical" if receive
             else "advantage over one vertical")

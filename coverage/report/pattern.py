@@ -192,6 +192,11 @@ def build(site, args=None) -> dict:
                 "front_to_rear_db": _r(fig["front_to_rear_db"]),
                 "beamwidth_deg": _r(fig["beamwidth_deg"], 1),
                 "element_currents": current_rows(res.base_current_a),
+                "kind": res.kind,
+                "design_band": res.design_band,
+                # every lobe within 1 dB at the peak elevation, true bearings, strongest first
+                "lobes_deg": [round(b, 1) for b, _ in
+                              lobe_bearings_deg(true_gain[int(round(fig["peak_elevation_deg"]))])],
                 "feedpoint_impedance_ohm": [pair(z) for z in res.feed_impedance_ohm],
                 "azimuth_deg": [float(a) for a in AZIMUTH_DEG],
                 "elevation_deg": [float(e) for e in ELEVATION_DEG],
@@ -286,8 +291,10 @@ def _block_text(rows: list[dict]) -> list[str]:
     ws = fit_width(18, (p["state"] for p in rows))
     lobe_texts = [", ".join(f"{lobe['bearing_deg']:.0f}°" for lobe in p["lobes"]) or "none (omni)" for p in rows]
     wl = fit_width(22, lobe_texts)
-    lines = [f"{first['band']}, {first['option']}: baseline along {first['orientation_deg']:.1f}° "
-             f"({_WHERE[first['orientation_from']]})" + (", receive option" if receive else ""),
+    single = len(first["element_currents"]) == 1   # issue 10: one vertical has no baseline
+    lines = [f"{first['band']}, {first['option']}: " + ("one vertical, no baseline" if single else
+             f"baseline along {first['orientation_deg']:.1f}° ({_WHERE[first['orientation_from']]})")
+             + (", receive option" if receive else ""),
              "  toward each goal: " + ("directivity over the sky mean, dB, and vs 1 vertical's" if receive
                                        else "gain at its needed angles, dBi, and vs 1 vertical, dB")]
     lines.append(f"  {'goal':<{wg}} {'path':<5} {'bearings':>10} {'takeoff':>8}"
@@ -310,7 +317,21 @@ def _block_text(rows: list[dict]) -> list[str]:
         lines.append(f"  {p['state']:<{ws}} {lobes:<{wl}} {_fmt(p['front_to_back_db'])} "
                      f"{_fmt(p['beamwidth_deg'], '7.0f')} {p['peak_gain_dbi']:6.2f} {at:>10} "
                      f"{p['rdf_db']:5.1f}  {cur}")
+    lines += _kind_lines(rows)
     return lines
+
+
+def _kind_lines(rows: list[dict]) -> list[str]:
+    """Issue 10: which states' currents are as built, forced or fed on this band."""
+    built = [p for p in rows if p.get("kind") == "as-built"]
+    forced = [p["state"] for p in rows if p.get("kind") == "forced" and len(p["element_currents"]) > 1]
+    out = []
+    for band in dict.fromkeys(p["design_band"] for p in built):
+        out.append(f"  as built from the {band} network (the currents it delivers here): "
+                   + ", ".join(p["state"] for p in built if p["design_band"] == band))
+    if forced:
+        out.append("  forced (the wanted currents held exactly): " + ", ".join(forced))
+    return out
 
 
 def format_text(result: dict) -> str:
