@@ -1,4 +1,4 @@
-"""Build data/countries_10m.npz from the Natural Earth 1:10m admin-0 shapefile.
+"""Build data/countries_10m.zip from the Natural Earth 1:10m admin-0 shapefile.
 
 Run once, offline, by a developer (see data/README.md for where the
 shapefile comes from):
@@ -33,7 +33,7 @@ from shapely.geometry import MultiPolygon, Polygon
 TOLERANCE_DEG = 0.003      # about 330 m in latitude
 MANY_VERTICES = 60         # parts with fewer vertices are small islands: kept as they are
 KEEP = ["NAME", "NAME_LONG", "ADMIN", "ADM0_A3", "ISO_A3_EH", "SOVEREIGNT", "TYPE", "CONTINENT"]
-OUT = Path(__file__).resolve().parent.parent / "data" / "countries_10m.npz"
+OUT = Path(__file__).resolve().parent.parent / "data" / "countries_10m.zip"
 
 
 def _parts(geom) -> list[Polygon]:
@@ -90,10 +90,13 @@ def main(shp: str) -> None:
             pieces[lab].append(part)
     merged = [shapely.make_valid(shapely.union_all(pieces[c])) for c in CONTINENTS]
     cwkb = [shapely.to_wkb(g) for g in merged]
-    np.savez_compressed(OUT, wkb=np.frombuffer(b"".join(wkb), dtype=np.uint8), offsets=offsets,
-                        continent_wkb=np.frombuffer(b"".join(cwkb), dtype=np.uint8),
-                        continent_offsets=np.cumsum([0] + [len(b) for b in cwkb]),
-                        continent_names=np.array(CONTINENTS), **columns)
+    # a NumPy .npz archive is a zip of arrays; written through a file object so
+    # that numpy keeps the .zip name instead of appending .npz
+    with open(OUT, "wb") as fh:
+        np.savez_compressed(fh, wkb=np.frombuffer(b"".join(wkb), dtype=np.uint8), offsets=offsets,
+                            continent_wkb=np.frombuffer(b"".join(cwkb), dtype=np.uint8),
+                            continent_offsets=np.cumsum([0] + [len(b) for b in cwkb]),
+                            continent_names=np.array(CONTINENTS), **columns)
     print(f"{len(frame)} features, {sum(len(g.geoms) for g in frame.geometry)} parts, "
           f"{OUT.stat().st_size / 1e6:.1f} MB -> {OUT}")
 

@@ -107,7 +107,7 @@ def countries() -> CountryTable:
     The file (made by ``tools/make_countries.py``) holds the features' WKB
     back to back with their offsets, and the attributes as text arrays.
     """
-    ref = resources.files("lobeplan.data").joinpath("countries_10m.npz")
+    ref = resources.files("lobeplan.data").joinpath("countries_10m.zip")
 
     def wkb(blob: np.ndarray, offsets: np.ndarray) -> np.ndarray:
         raw = blob.tobytes()
