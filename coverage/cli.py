@@ -50,7 +50,8 @@ VERBS = {
                 "each, lobes, front-to-back, beam width, RDF; figures and gain grids with --out"),
     "feed": ("lobeplan.report.feed", "coupled impedances, true element currents, feed-point impedances, "
              "line design and match"),
-    "map": ("lobeplan.report.map", "azimuthal-equidistant map per band with the lobes and goals"),
+    "map": ("lobeplan.report.map", "azimuthal-equidistant map per band with the lobes and goals; writes to "
+            "./lobeplan-maps without --out"),
     "exposure": ("lobeplan.report.exposure", "RF exposure distances (far-field estimate, US limits) with "
                  "the cautions that go with them"),
     "regions": ("lobeplan.report.regions", "country and continent names, codes and areas that match a text; "

@@ -55,3 +55,14 @@ def test_single_vertical_schedule_says_it_has_no_baseline(write_site, capsys):
         words = _figure_texts(fig)
         assert "baseline along" not in words and "no baseline" in words
         plt.close(fig)
+
+
+def test_map_without_out_keeps_clear_of_the_gallery_folder(write_site, tmp_path, monkeypatch, capsys):
+    # the checkout commits its gallery in maps/; a bare `lobeplan map` run
+    # there must write to a folder of its own
+    path = write_site(SINGLE)
+    monkeypatch.chdir(tmp_path)
+    assert main(["map", str(path), "--date", "2026-12-01", "--dpi", "50"]) == 0
+    capsys.readouterr()
+    assert not (tmp_path / "maps").exists()
+    assert (tmp_path / "lobeplan-maps" / "map-40m.png").is_file()

@@ -62,7 +62,9 @@ def check_arguments(args) -> None:
 
 
 def default_out(args) -> str:
-    return "maps"
+    # a folder of its own, like demo's: a run inside the checkout must not
+    # rewrite the committed gallery in maps/
+    return "lobeplan-maps"
 
 
 def map_file_name(band_name: str, fmt: str = "png") -> str:
