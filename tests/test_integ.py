@@ -66,3 +66,56 @@ def test_map_without_out_keeps_clear_of_the_gallery_folder(write_site, tmp_path,
     capsys.readouterr()
     assert not (tmp_path / "maps").exists()
     assert (tmp_path / "lobeplan-maps" / "map-40m.png").is_file()
+
+
+PAIR_BUILT = HEAD + """
+[array]
+height_m = 10.3
+layout = "pair"
+spacing_m = 10.5
+design_band = "40 m"
+[array.radials]
+count = 32
+length_m = 10.0
+depth_m = 0.05
+[[array.state]]
+name = "along"
+phase_deg = [0, -90]
+[feed]
+z0_ohm = 75
+velocity_factor = 0.66
+[[band]]
+name = "40 m"
+freq_mhz = 7.1
+[[goal]]
+region = "continent:Europe"
+[propagation]
+model = "geometry"
+points_per_goal = 30
+"""
+
+
+def test_radial_table_keeps_the_network_as_built():
+    # The switch box is cut once, on the site's own ground. Put 4 radials of
+    # 0.1 wavelength in place of 32 x 10 m and the base resistance triples
+    # (about 12 -> 36 ohm), so the same lines can no longer deliver the
+    # designed 1/-90 deg currents (common practice: a phasing network is only
+    # right for the load it was cut for). A table that cut the network again
+    # for each radial system would show the designed currents in every row.
+    import cmath
+    import math
+
+    from lobeplan.antenna.radial_table import radial_table
+
+    site = loads(PAIR_BUILT, file="t.toml")
+    option = site.array.options[0]
+    table = radial_table(site.array, option, 7.1e6)
+    (own,) = table.site_fed
+    ratio = own.base_current_a[1] / own.base_current_a[0]
+    assert abs(ratio) == pytest.approx(1.0, abs=0.01)                   # the network meets its design
+    assert math.degrees(cmath.phase(ratio)) == pytest.approx(-90.0, abs=1.0)
+    poor = next(r for r in table.rows if r.count == 4 and r.length_wavelengths == 0.1)
+    (moved,) = poor.fed
+    ratio = moved.base_current_a[1] / moved.base_current_a[0]
+    assert abs(abs(ratio) - 1.0) > 0.05 or abs(math.degrees(cmath.phase(ratio)) + 90.0) > 5.0
+    assert moved.front_to_back_db < own.front_to_back_db - 3.0          # the null fills in

@@ -498,7 +498,7 @@ def _table_text(b, rad) -> list[str]:
         def cur(entry, name=fed["state"]):
             a = next(x for x in entry["as_built"] if x["state"] == name)
             return (", ".join(f"{c['amplitude']:.2f}/{c['phase_deg']:+.0f}" for c in a["element_currents"])
-                    + f", F/B {a['front_to_back_db']:.1f} dB")
+                    + f", F/B {a['front_to_back_db'] if abs(a['front_to_back_db']) >= 0.05 else 0.0:.1f} dB")
         out.append(f"    as built {fed['state']!r}: now {cur(ref)}; with {lo['count']} x {lo['length_wavelengths']:g} "
                    f"wavelength {cur(lo)}; with {hi['count']} x {hi['length_wavelengths']:g} wavelength {cur(hi)}")
     return out
