@@ -119,3 +119,53 @@ def test_radial_table_keeps_the_network_as_built():
     ratio = moved.base_current_a[1] / moved.base_current_a[0]
     assert abs(abs(ratio) - 1.0) > 0.05 or abs(math.degrees(cmath.phase(ratio)) + 90.0) > 5.0
     assert moved.front_to_back_db < own.front_to_back_db - 3.0          # the null fills in
+
+
+SQUARE = HEAD + """
+[array]
+height_m = 10.3
+layout = "square"
+spacing_m = 10.5
+orientation_deg = 30
+""" + "".join(f"""
+[[array.state]]
+name = "{name}"
+phase_deg = {phases}
+""" for name, phases in (("NE", [0, -90, -180, -90]), ("SE", [-90, 0, -90, -180]),
+                         ("SW", [-180, -90, 0, -90]), ("NW", [-90, -180, -90, 0]))) + """
+[[band]]
+name = "40 m"
+freq_mhz = 7.1
+[[goal]]
+region = "continent:Europe"
+[propagation]
+model = "geometry"
+points_per_goal = 30
+"""
+
+
+@pytest.mark.parametrize("text", [SINGLE, SQUARE], ids=["single", "square"])
+def test_layout_figure_keeps_title_and_legend_on_the_page(text):
+    # a one-panel page is 5.4 in wide: the title wraps, the legend of four
+    # states and the line runs fits below the axes; one vertical has no
+    # junction and no line runs to draw
+    import matplotlib.pyplot as plt
+
+    from lobeplan.plan.planner import make_plan
+    from lobeplan.render.layout import layout_figure
+    from lobeplan.report.plan import staking_plans
+
+    site = loads(text, file="t.toml")
+    plan = make_plan(site)
+    beams = [{s.name: (0.0,) for s in o.states} for o in site.array.options]
+    fig = layout_figure(staking_plans(site, plan), site.orientation.allowed_deg, beams,
+                        f"{site.station.name}: where the elements go (top view, north up; beams on each "
+                        "state's design band)")
+    fig.canvas.draw()
+    page = fig.bbox
+    for artist in [fig._suptitle] + [ax.get_legend() for ax in fig.axes]:
+        box = artist.get_window_extent()
+        assert box.x0 >= page.x0 - 1 and box.x1 <= page.x1 + 1 and box.y0 >= page.y0 - 1, artist
+    gids = {a.get_gid() for ax in fig.axes for a in ax.get_children()}
+    assert ("junction" in gids) == (len(site.array.options[0].positions_m) > 1)
+    plt.close(fig)
