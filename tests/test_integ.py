@@ -169,3 +169,42 @@ def test_layout_figure_keeps_title_and_legend_on_the_page(text):
     gids = {a.get_gid() for ax in fig.axes for a in ax.get_children()}
     assert ("junction" in gids) == (len(site.array.options[0].positions_m) > 1)
     plt.close(fig)
+
+
+def test_site_file_guide_lists_every_key_the_loader_accepts():
+    # docs/site-file.md is the user's reference: each key of every section
+    # the loader reads must have a row (first cell) in that section's table
+    import re
+    from pathlib import Path
+
+    from lobeplan import site as site_mod
+
+    text = (Path(__file__).parent.parent / "docs" / "site-file.md").read_text()
+    sections = {}
+    for block in re.split(r"\n#+ ", text)[1:]:
+        head = re.match(r"`([^`]+)`", block)
+        if head is None:
+            continue
+        rows = re.findall(r"^\| ([^|]+) \|", block, flags=re.M)
+        sections[head.group(1)] = {k for r in rows for k in re.findall(r"`([a-z0-9_]+)`", r)}
+    wanted = {"[station]": site_mod._STATION, "[array]": site_mod._ARRAY,
+              "[array.radials]": site_mod._RADIALS, "[[array.foreground]]": site_mod._FOREGROUND,
+              "[[array.option]]": site_mod._OPTION, "[[array.state]]": site_mod._STATE,
+              "[feed]": site_mod._FEED, "[[band]]": site_mod._BAND, "[[goal]]": site_mod._GOAL,
+              "[propagation]": site_mod._PROP, "[map]": site_mod._MAP}
+    missing = {sec: sorted(set(keys) - sections.get(sec, set())) for sec, keys in wanted.items()}
+    assert not {s: m for s, m in missing.items() if m}, missing
+
+
+def test_readme_usage_names_every_verb_and_what_plan_out_writes():
+    from pathlib import Path
+
+    from lobeplan.cli import VERBS
+
+    readme = (Path(__file__).parent.parent / "README.md").read_text()
+    usage = readme.split("## Usage", 1)[1].split("\n## ", 1)[0]
+    for verb in VERBS:
+        assert f"    lobeplan {verb} " in usage, verb
+    for name in ("plan.json", "plan.csv", "plan.geojson", "stakes.csv", "layout.png", "schedule.csv",
+                 "switch-card.png", "paths.json", "needs.json", "./lobeplan-demo", "./lobeplan-maps"):
+        assert name in usage, name
