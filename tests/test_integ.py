@@ -208,3 +208,39 @@ def test_readme_usage_names_every_verb_and_what_plan_out_writes():
     for name in ("plan.json", "plan.csv", "plan.geojson", "stakes.csv", "layout.png", "schedule.csv",
                  "switch-card.png", "paths.json", "needs.json", "./lobeplan-demo", "./lobeplan-maps"):
         assert name in usage, name
+
+
+def test_pattern_figure_note_stays_on_the_page():
+    # the definitions under the charts must be readable whole: no line runs
+    # past the right edge, and the note does not climb into the axes labels
+    import matplotlib.pyplot as plt
+
+    from lobeplan.render.goalchart import band_figure
+    from lobeplan.report import pattern as pattern_verb
+    from lobeplan.report.pattern import _blocks
+
+    text = PAIR_BUILT.replace("[[band]]", """[[array.foreground]]
+bearing_deg = [0, 120]
+from_m = 80
+ground = "sea"
+[[band]]""", 1)
+    site = loads(text, file="t.toml")
+    result = pattern_verb.build(site, _Args())
+    block = next(iter(_blocks(result["patterns"])))
+    fig = band_figure(block, site.station.name, foreground=result.get("foreground", ()))
+    fig.canvas.draw()
+    renderer = fig.canvas.get_renderer()
+    note = fig.texts[-1]
+    box = note.get_window_extent(renderer)
+    assert box.x1 <= fig.bbox.x1 and box.x0 >= fig.bbox.x0
+    lowest_axes = min(ax.get_tightbbox(renderer).y0 for ax in fig.axes)
+    assert box.y1 <= lowest_axes + 1
+    plt.close(fig)
+
+
+class _Args:
+    json = True
+    band = None
+    state = None
+    power_w = None
+    date = "2026-12-01"
