@@ -244,3 +244,14 @@ class _Args:
     state = None
     power_w = None
     date = "2026-12-01"
+
+
+def test_ground_line_does_not_claim_a_loss_the_site_did_not_give():
+    from lobeplan.report.ground import ground_line, ground_summary
+
+    site = loads(SINGLE, file="t.toml")
+    summary = ground_summary(site)
+    assert summary["ground_loss_default"] is True
+    assert "as given" not in ground_line(summary) and "default" in ground_line(summary)
+    given = loads(SINGLE.replace('layout = "single"', 'layout = "single"\nground_loss_ohm = 5'), file="t.toml")
+    assert "as given (ground_loss_ohm)" in ground_line(ground_summary(given))
