@@ -255,3 +255,27 @@ def test_ground_line_does_not_claim_a_loss_the_site_did_not_give():
     assert "as given" not in ground_line(summary) and "default" in ground_line(summary)
     given = loads(SINGLE.replace('layout = "single"', 'layout = "single"\nground_loss_ohm = 5'), file="t.toml")
     assert "as given (ground_loss_ohm)" in ground_line(ground_summary(given))
+
+
+def test_elevation_panel_keeps_its_layout_with_a_long_default_goal_name(tmp_path):
+    # a goal without a name is named by its region string; a file: path can
+    # run to hundreds of characters, and the legend must not push the panel
+    # off the page (matplotlib warns when tight_layout gives up)
+    import json as _json
+    import warnings
+
+    import matplotlib.pyplot as plt
+
+    from lobeplan.plan.planner import make_plan
+    from lobeplan.render.panels import elevation_figure
+
+    name = "d" * 200 + ".geojson"
+    ring = [[0, 40], [10, 40], [10, 50], [0, 50], [0, 40]]
+    (tmp_path / name).write_text(_json.dumps({"type": "FeatureCollection", "features": [
+        {"type": "Feature", "properties": {}, "geometry": {"type": "Polygon", "coordinates": [ring]}}]}))
+    text = SINGLE.replace('region = "continent:Europe"', f'region = "file:{name}"')
+    site = loads(text, file=str(tmp_path / "site.toml"), base_dir=str(tmp_path))
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        fig = elevation_figure(site, make_plan(site))
+    plt.close(fig)
