@@ -279,3 +279,21 @@ def test_elevation_panel_keeps_its_layout_with_a_long_default_goal_name(tmp_path
         warnings.simplefilter("error")
         fig = elevation_figure(site, make_plan(site))
     plt.close(fig)
+
+
+def test_a_foreground_edge_is_not_a_lobe():
+    # A cardioid-like row (1 + cos) has one lobe. Add a hard foreground step
+    # (+3 dB over 100..200 deg, as a sector of sea would): its edges make
+    # local maxima of the blended row, but the lobes stay the smooth ones.
+    import numpy as np
+
+    from lobeplan.antenna.pattern import lobe_bearings_deg
+
+    az = np.arange(360.0)
+    row = 10 * np.log10(np.maximum((1 + np.cos(np.radians(az - 30))) / 2, 1e-6) + 0.05)
+    assert [round(b) for b, _ in lobe_bearings_deg(row)] == [30]
+    stepped = row + np.where((az >= 100) & (az < 200), 3.0, 0.0)
+    assert [round(b) for b, _ in lobe_bearings_deg(stepped, within_db=30)] == [30]
+    # a row that is nothing but a step still says where it is strongest
+    flat = np.where((az >= 100) & (az < 200), 3.0, 0.0)
+    assert len(lobe_bearings_deg(flat)) == 1

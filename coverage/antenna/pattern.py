@@ -418,6 +418,17 @@ LOBE_WINDOW_DB = 1.0
 _TIE_DB = 1e-6  # gains this close count as equal, so ties break the same on every machine
 
 
+_STEP_MIN_DB = 0.1   # a drop this small next to a maximum is within a smooth lobe's top
+
+
+def _is_step(g: np.ndarray, i: int, side: int) -> bool:
+    """Whether the row falls from sample ``i`` toward ``side`` (-1, +1) as a step does, not as a lobe."""
+    n = g.size
+    first = g[i] - g[(i + side) % n]
+    second = g[(i + side) % n] - g[(i + 2 * side) % n]
+    return bool(first > _STEP_MIN_DB and second < 0.5 * first)
+
+
 def lobe_bearings_deg(row_dbi: np.ndarray, within_db: float = LOBE_WINDOW_DB) -> tuple[tuple[float, float], ...]:
     """Every lobe of one circular azimuth row within ``within_db`` of its peak.
 
@@ -435,7 +446,9 @@ def lobe_bearings_deg(row_dbi: np.ndarray, within_db: float = LOBE_WINDOW_DB) ->
         three samples around each local maximum. Gains are compared after
         rounding to 1e-6 dB and equal lobes are ordered by azimuth, so twin
         beams come out in the same order on every machine. A row without
-        any maximum (omnidirectional) has no lobe: ``()``.
+        any maximum (omnidirectional) has no lobe: ``()``. A maximum that is
+        the high side of a step (a foreground sector's edge) is not a lobe,
+        unless the row has nothing else.
     """
     g = np.asarray(row_dbi, dtype=float)
     n = g.size
@@ -446,6 +459,15 @@ def lobe_bearings_deg(row_dbi: np.ndarray, within_db: float = LOBE_WINDOW_DB) ->
     left, right = np.roll(q, 1), np.roll(q, -1)
     # a plateau of equal samples counts once, at its first sample
     peaks = np.flatnonzero((q > left) & (q >= right))
+    # A foreground sector's edge is a step in the blended gain: the sample on
+    # its high side is a local maximum without being a lobe. A smooth
+    # maximum falls faster the further it goes (concave: the second drop at
+    # least the first); a step falls once and then runs on nearly level.
+    smooth = [i for i in peaks if not (_is_step(g, i, -1) or _is_step(g, i, +1))]
+    if smooth or peaks.size == 0:
+        peaks = np.asarray(smooth, dtype=int)
+    else:  # only steps: the strongest still marks where the beam is
+        peaks = peaks[[int(np.argmax(g[peaks]))]]
     top = float(np.max(g))
     out = []
     for i in peaks:
