@@ -297,3 +297,44 @@ def test_a_foreground_edge_is_not_a_lobe():
     # a row that is nothing but a step still says where it is strongest
     flat = np.where((az >= 100) & (az < 200), 3.0, 0.0)
     assert len(lobe_bearings_deg(flat)) == 1
+
+
+RECEIVE = HEAD + """
+[array]
+height_m = 3.0
+radius_m = 0.01
+layout = "pair"
+spacing_m = 15
+use = "receive"
+[[array.state]]
+name = "fwd"
+phase_deg = [0, -130]
+[[band]]
+name = "40 m"
+freq_mhz = 7.1
+[[goal]]
+region = "continent:Europe"
+[propagation]
+model = "geometry"
+points_per_goal = 30
+"""
+
+
+def test_feed_designs_no_transmitter_match_for_a_receive_option():
+    # docs/site-file.md: "feed designs no match for it" -- nor its part
+    # stress at a transmitter power, nor an SWR
+    from lobeplan.fileio import dumps_json
+    from lobeplan.report import feed as feed_verb
+
+    site = loads(RECEIVE, file="t.toml")
+    res = json.loads(dumps_json(feed_verb.build(site, _Args())))
+    (band,) = res["bands"]
+    (state,) = band["states"]
+    net = state["network"]
+    assert net is not None and net["power_w"] is None
+    assert not [p for p in net["parts"] + net["stress"] if p["name"].startswith("match ")]
+    assert all(c["swr"] is None for c in net["checks"])
+    for line in band["design"]["lines"]:
+        assert not [p for p in line["network"]["parts"] if p["name"].startswith("match ")]
+    text = feed_verb.format_text(res)
+    assert " A rms at " not in text and "match series" not in text
