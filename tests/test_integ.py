@@ -338,3 +338,20 @@ def test_feed_designs_no_transmitter_match_for_a_receive_option():
         assert not [p for p in line["network"]["parts"] if p["name"].startswith("match ")]
     text = feed_verb.format_text(res)
     assert " A rms at " not in text and "match series" not in text
+
+
+@pytest.mark.parametrize("orientation, drawn", [("30", False), ('"sweep"', True)])
+def test_orientation_panel_only_when_there_are_bearings_to_compare(orientation, drawn, tmp_path, monkeypatch):
+    # a fixed orientation_deg scores one bearing per option: a panel of
+    # "score against baseline bearing" would show a dot, so there is none
+    from pathlib import Path
+
+    import lobeplan.render.azimap as azimap
+    from lobeplan.plan.planner import make_plan
+    from lobeplan.report.map import write_plan_figures
+
+    monkeypatch.setattr(azimap, "draw_map", lambda scene, path, *a, **k: Path(path))   # the maps are not the point
+    site = loads(PAIR_BUILT.replace('layout = "pair"', f'layout = "pair"\norientation_deg = {orientation}'),
+                 file="t.toml")
+    names = {p.name for p in write_plan_figures(site, make_plan(site), _Args(), tmp_path)}
+    assert ("orientation.png" in names) is drawn and "elevation.png" in names
