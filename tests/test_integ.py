@@ -355,3 +355,27 @@ def test_orientation_panel_only_when_there_are_bearings_to_compare(orientation, 
                  file="t.toml")
     names = {p.name for p in write_plan_figures(site, make_plan(site), _Args(), tmp_path)}
     assert ("orientation.png" in names) is drawn and "elevation.png" in names
+
+
+def test_a_signal_just_after_the_staging_folder_is_made_leaves_nothing(write_site, tmp_path, monkeypatch, capsys):
+    # Ctrl-C can land between the staging folder's making and the code that
+    # discards it on failure; the run must still leave no folder behind
+    import os
+    import signal
+
+    import lobeplan.fileio as fileio
+
+    real = fileio.start_staging
+
+    def make_then_signal(out_dir):
+        staging = real(out_dir)
+        os.kill(os.getpid(), signal.SIGINT)
+        return staging
+
+    monkeypatch.setattr(fileio, "start_staging", make_then_signal)
+    site = write_site(SINGLE)
+    out = tmp_path / "res"
+    assert main(["paths", str(site), "--out", str(out)]) == 130
+    capsys.readouterr()
+    assert not out.exists()
+    assert [p.name for p in tmp_path.iterdir() if p.name.startswith(".")] == []
