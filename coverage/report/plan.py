@@ -55,6 +55,7 @@ def _goal_row(g) -> dict:
 
 def build_from_plan(site, plan) -> dict:
     from ..plan.planner import goal_rows
+    from .paths import goal_path_rows
 
     ranking = [{"option": e.option, "orientation_deg": _r(e.orientation_deg, 1), "spacing_m": _r(e.spacing_m, 3),
                 "layout": e.layout, "score_db": _r(e.score_db, 2),
@@ -84,6 +85,7 @@ def build_from_plan(site, plan) -> dict:
         "orientation_scores": scores,
         "caveats": list(plan.caveats) + list(height_caveats(site)),
         "cautions": list(CAUTIONS),
+        "goal_paths": goal_path_rows(site),   # bearings and distances the plan page shows
     }
 
 
@@ -152,11 +154,12 @@ def _csv(result: dict) -> str:
 
 
 def write_files(site, args, result, out_dir) -> list[Path]:
-    """plan.json and plan.csv, then the maps (PNG per band), panels and GeoJSON."""
+    """plan.json and plan.csv, then the maps (PNG per band), panels, GeoJSON and plan.html."""
     from ..fileio import atomic_write_json, atomic_write_text
+    from ..render.page import write_page
     from .map import write_plan_figures
 
     out = Path(out_dir)
     written = [atomic_write_json(out / "plan.json", result), atomic_write_text(out / "plan.csv", _csv(result))]
     plan = run_plan(site, bool(getattr(args, "json", False)))
-    return written + write_plan_figures(site, plan, args, out)
+    return written + write_plan_figures(site, plan, args, out) + [write_page(site, plan, result, out / "plan.html")]

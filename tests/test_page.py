@@ -1,0 +1,398 @@
+"""The plan page (plan.html): embedded data, escaping, projection, and a real browser.
+
+The browser tests drive Debian's ``chromium`` with ``chromium-driver``
+through Selenium, one session for the module; they skip, saying why, where
+either is missing. The schedule and staking plan are built here in the shape
+the schedule and array verbs write (``schedule`` rows and ``stakes``
+entries), from the plan's own per-goal rows, so that every control has
+something to change.
+"""
+from __future__ import annotations
+
+import json
+import math
+import re
+import shutil
+import tempfile
+
+import pytest
+
+from lobeplan.fileio import atomic_write_json
+from lobeplan.render.page import page_drawing, script_json, svg_path, write_page
+from lobeplan.report.plan import build_from_plan, run_plan
+from lobeplan.site import loads
+
+SITE = """
+[station]
+name = "Test lot"
+lat = 45.0
+lon = -93.0
+[array]
+height_m = 10.0
+layout = "pair"
+spacing_m = [10.5, 21.0]
+orientation_deg = "sweep"
+orientation_step_deg = 5
+allowed_orientation_deg = [[0, 140]]
+[[array.state]]
+name = "fwd"
+phase_deg = [0, -90]
+[[array.state]]
+name = "rev"
+phase_deg = [-90, 0]
+[[array.state]]
+name = "both"
+phase_deg = [0, 0]
+[[band]]
+name = "40 m"
+freq_mhz = 7.1
+[[band]]
+name = "20 m"
+freq_mhz = 14.1
+[[goal]]
+name = "Europe"
+region = "continent:Europe"
+clip = [-30, 34, 45, 72]
+avoid = ["country:JPN"]
+[[goal]]
+name = "South America"
+region = "continent:South America"
+[propagation]
+points_per_goal = 40
+"""
+
+# names with quotes, angle brackets, an ampersand and non-Latin letters
+EVIL_STATION = 'Øster "Lot" <script>alert(1)</script> & 北の畑'
+EVIL_GOAL = 'Тест </script><b>"goal"</b> & ́ä'
+EVIL_SITE = f"""
+[station]
+name = {json.dumps(EVIL_STATION)}
+lat = 45.0
+lon = -93.0
+[array]
+height_m = 10.0
+layout = "pair"
+spacing_m = 10.5
+orientation_deg = 30
+[[array.state]]
+name = "fwd <&> \\"q\\""
+phase_deg = [0, -90]
+[[band]]
+name = "40 m"
+freq_mhz = 7.1
+[[goal]]
+name = {json.dumps(EVIL_GOAL)}
+region = "circle:50,10,1500"
+[propagation]
+points_per_goal = 30
+"""
+
+MONTHS = (6, 12)
+
+
+def fake_schedule(result: dict, states_of: dict) -> list[dict]:
+    """Rows in the schedule's shape: state by hour and month, from the plan's own goal rows."""
+    rows = []
+    for comp in result["spacing_comparison"]:
+        states = states_of[comp["option"]]
+        for band in {g["band"] for g in comp["goals"]}:
+            goals = [g for g in comp["goals"] if g["band"] == band]
+            for month in MONTHS:
+                for hour in range(24):
+                    closed = hour == 23
+                    state = None if closed else states[(hour // 2 + MONTHS.index(month)) % len(states)]
+                    rows.append({
+                        "band": band, "month": month, "hour_utc": hour, "option": comp["option"], "state": state,
+                        "score_db": None if closed else round(1.0 + 0.05 * hour, 2),
+                        "goals": [{"name": g["goal"], "open_share": 0.0 if closed else round(0.1 + 0.08 * ((hour + i) % 10), 3),
+                                   "advantage_db": None if closed else round((g["advantage_db"] or 0.0) - 0.4 * (hour % 5), 2)}
+                                  for i, g in enumerate(goals)],
+                        "runner_up_state": states[0], "runner_up_score_db": 0.5})
+    return rows
+
+
+def fake_stakes(result: dict) -> list[dict]:
+    comp = result["spacing_comparison"][0]
+    return [{"option": comp["option"], "orientation_deg": comp["best_orientation_deg"],
+             "elements": [{"element": 1, "along_m": 0.0, "across_m": 0.0, "north_m": 0.0, "east_m": 0.0,
+                           "lat_deg": 45.0, "lon_deg": -93.0},
+                          {"element": 2, "along_m": 10.5, "across_m": 0.0, "north_m": 10.1, "east_m": 2.9,
+                           "lat_deg": 45.000091, "lon_deg": -92.999963}],
+             "junction": {"along_m": 5.25, "across_m": 0.0}, "runs": [{"element": 1, "length_m": 6.0},
+                                                                      {"element": 2, "length_m": 13.0}]}]
+
+
+@pytest.fixture(scope="module")
+def pages(tmp_path_factory):
+    """(folder, plan.json dict, site) of the test site with a schedule and stakes, and the evil site."""
+    out = tmp_path_factory.mktemp("page")
+    site = loads(SITE, file="test.toml")
+    plan = run_plan(site, True)
+    result = build_from_plan(site, plan)
+    result["schedule"] = fake_schedule(result, {op.option: list(op.state_names) for op in plan.options})
+    result["stakes"] = fake_stakes(result)
+    atomic_write_json(out / "plan.json", result)
+    write_page(site, plan, result, out / "plan.html")
+
+    evil = loads(EVIL_SITE, file="evil.toml")
+    eplan = run_plan(evil, True)
+    eres = build_from_plan(evil, eplan)
+    (out / "evil").mkdir()
+    atomic_write_json(out / "evil" / "plan.json", eres)
+    write_page(evil, eplan, eres, out / "evil" / "plan.html")
+    return out, result, site, plan
+
+
+def _block(html: str, block_id: str) -> str:
+    m = re.search(rf'<script type="application/json" id="{block_id}">(.*?)</script>', html, re.S)
+    assert m, block_id
+    return m.group(1)
+
+
+def _unescape(text: str) -> str:
+    return (text.replace("\\u003c", "<").replace("\\u003e", ">").replace("\\u0026", "&")
+            .replace("\\u2028", "\u2028").replace("\\u2029", "\u2029"))
+
+
+# ---------- without a browser ----------
+
+def test_embedded_plan_is_the_file(pages):
+    out, _, _, _ = pages
+    html = (out / "plan.html").read_text(encoding="utf-8")
+    text = (out / "plan.json").read_text(encoding="utf-8")
+    embedded = _block(html, "plan-json")
+    assert _unescape(embedded) == text.rstrip("\n")       # the file's own text, escapes undone
+    assert json.loads(embedded) == json.loads(text)       # and the same data once parsed
+
+
+def test_names_are_escaped(pages):
+    out = pages[0] / "evil"
+    html = (out / "plan.html").read_text(encoding="utf-8")
+    # only the page's own three script blocks close; no tag from a name survives
+    assert html.count("</script>") == 3
+    assert "<b>" not in html and "alert(1)</script>" not in html
+    plan = json.loads(_block(html, "plan-json"))
+    assert plan["station"]["name"] == EVIL_STATION
+    drawing = json.loads(_block(html, "page-drawing"))
+    assert [g["name"] for g in drawing["goals"]] == [EVIL_GOAL]
+    assert json.loads(script_json({"a": "</script><!--&\u2028"})) == {"a": "</script><!--&\u2028"}
+
+
+def test_plan_verb_writes_the_page(tmp_path, write_site):
+    from lobeplan.cli import main
+
+    path = write_site(SITE.replace("points_per_goal = 40", "points_per_goal = 20"))
+    assert main(["plan", str(path), "--out", str(tmp_path / "out"), "--date", "2026-01-02"]) == 0
+    html = (tmp_path / "out" / "plan.html").read_text(encoding="utf-8")
+    assert json.loads(_block(html, "plan-json")) == json.loads((tmp_path / "out" / "plan.json").read_text())
+    assert "http://" not in html.replace("http://www.w3.org/2000/svg", "") and "https://" not in html
+
+
+def test_svg_path_is_the_azimuthal_equidistant_map(pages):
+    """A small square's corner lands at the great-circle bearing and distance.
+
+    Snyder (1987), USGS PP 1395, p. 191: on the azimuthal equidistant
+    projection the distance from the centre is the great-circle distance and
+    the direction is the azimuth. Checked against the spherical law of
+    cosines and the forward-azimuth formula (common practice), on the 6371 km
+    sphere the maps use; 2 km tolerance: the page keeps whole kilometres and
+    simplifies outlines by 0.1 deg, but a corner is a kept vertex.
+    """
+    from shapely.geometry import Polygon
+
+    from lobeplan.render.azimap import projection
+
+    lon0, lat0 = -93.0, 45.0
+    proj, src = projection(lon0, lat0)
+    sq = Polygon([(10.0, 50.0), (12.0, 50.0), (12.0, 52.0), (10.0, 52.0)])
+    d = svg_path(proj.project_geometry(sq, src))
+    m = re.match(r"M(-?\d+) (-?\d+)l", d)
+    x_km, y_km = int(m.group(1)), -int(m.group(2))        # the page's y grows downward
+    corner = proj.transform_point(10.0, 50.0, src)
+    assert (x_km, y_km) == (round(corner[0] / 1000), round(corner[1] / 1000))
+    p1, p2, dl = math.radians(lat0), math.radians(50.0), math.radians(10.0 - lon0)
+    dist = 6371.0 * math.acos(math.sin(p1) * math.sin(p2) + math.cos(p1) * math.cos(p2) * math.cos(dl))
+    az = math.degrees(math.atan2(math.sin(dl) * math.cos(p2),
+                                 math.cos(p1) * math.sin(p2) - math.sin(p1) * math.cos(p2) * math.cos(dl))) % 360
+    assert math.hypot(x_km, y_km) == pytest.approx(dist, abs=2.0)
+    assert math.degrees(math.atan2(x_km, y_km)) % 360 == pytest.approx(az, abs=0.05)
+
+
+def test_lobes_reach_the_scale_peak(pages):
+    _, _, site, plan = pages
+    drawing = page_drawing(site, plan)
+    for op in drawing["options"]:
+        for band, lobes in op["lobes_km"].items():
+            assert set(lobes) == set(op["states"])
+            assert all(len(r) == 360 for r in lobes.values())
+            # the strongest state of the band is drawn at the peak radius (scene.lobe_radius_km)
+            assert max(max(r) for r in lobes.values()) == round(site.map.lobe_peak_km)
+
+
+# ---------- in a real browser ----------
+
+def _browser_or_skip():
+    pytest.importorskip("selenium", reason="selenium is not installed (pip install '.[test]')")
+    chromium = shutil.which("chromium") or shutil.which("chromium-browser")
+    driver = shutil.which("chromedriver")
+    if not chromium or not driver:
+        pytest.skip("no browser: Debian's chromium and chromium-driver are not installed "
+                    "(apt-get install chromium chromium-driver)")
+    from selenium import webdriver
+    from selenium.webdriver.chrome.service import Service
+
+    opts = webdriver.ChromeOptions()
+    opts.binary_location = chromium
+    profile = tempfile.mkdtemp(prefix="lobeplan-chromium-")
+    # the machine's closed network refuses every connection: keep the browser from trying
+    for a in ("--headless=new", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
+              "--disable-background-networking", "--disable-component-update", "--disable-sync",
+              "--hide-scrollbars", f"--user-data-dir={profile}"):
+        opts.add_argument(a)
+    opts.set_capability("goog:loggingPrefs", {"browser": "ALL", "performance": "ALL"})
+    return webdriver.Chrome(service=Service(driver), options=opts), profile
+
+
+@pytest.fixture(scope="module")
+def browser():
+    drv, profile = _browser_or_skip()
+    drv.set_window_size(1280, 800)
+    yield drv
+    drv.quit()
+    shutil.rmtree(profile, ignore_errors=True)
+
+
+def _open(drv, path):
+    drv.get(path.as_uri())
+    drv.get_log("browser")
+    drv.get_log("performance")
+    drv.get(path.as_uri())
+    return drv.find_element("css selector", "html").get_attribute("data-ready-ms")
+
+
+def _number(text: str) -> float:
+    m = re.search(r"[+\-\u2212]?\d+(?:\.\d+)?", text)
+    assert m, text
+    return float(m.group(0).replace("\u2212", "-"))
+
+
+def test_loads_offline_without_errors(browser, pages, capsys):
+    out = pages[0]
+    for path in (out / "plan.html", out / "evil" / "plan.html"):
+        ready = _open(browser, path)
+        assert ready is not None, "the page script did not finish"
+        errors = [e for e in browser.get_log("browser") if e["level"] in ("SEVERE", "WARNING")]
+        assert errors == []
+        urls = []
+        for entry in browser.get_log("performance"):
+            msg = json.loads(entry["message"])["message"]
+            if msg["method"] == "Network.requestWillBeSent":
+                urls.append(msg["params"]["request"]["url"])
+        assert urls and all(u.startswith(("file://", "data:")) for u in urls), urls
+        with capsys.disabled():
+            print(f"\n  plan page {path.parent.name}/{path.name}: script ready in {float(ready):.0f} ms")
+    # the evil names arrive as text, not markup
+    assert browser.find_element("id", "station-name").text == EVIL_STATION
+    assert EVIL_GOAL in browser.find_element("id", "goal-table").text
+    assert browser.find_elements("css selector", "b") == []
+
+
+def _drawn(drv) -> str:
+    return drv.execute_script(
+        "return ['layer-lobes','layer-goals','layer-baseline'].map(function(i){"
+        "var g=document.getElementById(i); return Array.from(g.querySelectorAll('[fill],[points],[x1]'))"
+        ".map(function(e){return (e.getAttribute('fill')||'')+(e.getAttribute('points')||'')+(e.getAttribute('x1')||'')})"
+        ".join('|')}).join('#')")
+
+
+def test_each_control_changes_the_map(browser, pages):
+    from selenium.webdriver.common.keys import Keys
+    from selenium.webdriver.support.ui import Select
+
+    out, result, _, _ = pages
+    _open(browser, out / "plan.html")
+    svg = browser.find_element("id", "map")
+
+    def changed(action):
+        before, shot = _drawn(browser), svg.screenshot_as_png
+        action()
+        assert _drawn(browser) != before
+        assert svg.screenshot_as_png != shot
+
+    second = result["spacing_comparison"][1]["option"]
+    changed(lambda: Select(browser.find_element("id", "ctl-option")).select_by_value(second))
+    changed(lambda: Select(browser.find_element("id", "ctl-band")).select_by_value("20 m"))
+    drawn = browser.find_element("css selector", "#layer-lobes polygon").get_attribute("data-state")
+    other = next(o.get_attribute("value") for o in browser.find_elements("css selector", "#ctl-state option")
+                 if o.get_attribute("value") not in ("best", drawn))
+    changed(lambda: Select(browser.find_element("id", "ctl-state")).select_by_value(other))
+    changed(lambda: Select(browser.find_element("id", "ctl-state")).select_by_value("best"))
+    changed(lambda: Select(browser.find_element("id", "ctl-month")).select_by_value(str(MONTHS[1])))
+    # the slider by keyboard alone: two steps to the next state
+    hour = browser.find_element("id", "ctl-hour")
+    changed(lambda: hour.send_keys(Keys.ARROW_RIGHT, Keys.ARROW_RIGHT))
+    assert browser.find_element("id", "hour-out").text == "02:00"
+    assert browser.find_element("id", "schedule-here") is not None
+
+
+def test_keyboard_reaches_controls_and_goals(browser, pages):
+    from selenium.webdriver.common.keys import Keys
+
+    _open(browser, pages[0] / "plan.html")
+    body = browser.find_element("css selector", "body")
+    body.send_keys(Keys.TAB)
+    seen = []
+    for _ in range(40):
+        active = browser.switch_to.active_element
+        seen.append(active.get_attribute("id") or active.get_attribute("data-goal"))
+        if active.get_attribute("data-goal"):
+            break
+        active.send_keys(Keys.TAB)
+    assert {"ctl-option", "ctl-band", "ctl-state", "ctl-month", "ctl-hour"} <= set(seen)
+    goal = browser.switch_to.active_element.get_attribute("data-goal")
+    assert goal and browser.find_element("id", "goal-info-title").text == goal
+    # a select changes from the keyboard too (two steps: the first state is the one scheduled at 00 UTC)
+    state = browser.find_element("id", "ctl-state")
+    before = _drawn(browser)
+    state.send_keys(Keys.ARROW_DOWN, Keys.ARROW_DOWN)
+    assert state.get_attribute("value") not in ("best", "fwd") and _drawn(browser) != before
+
+
+def test_three_figures_are_plan_json(browser, pages):
+    out, result, _, _ = pages
+    plan = json.loads((out / "plan.json").read_text())
+    _open(browser, out / "plan.html")
+    # 1. the best score in the header
+    best = browser.find_element("id", "best-line").text
+    assert _number(best.split("score")[1]) == plan["ranking"][0]["score_db"]
+    # 2. the advantage in the first row of the table by goal (the best option, shown first)
+    comp = next(c for c in plan["spacing_comparison"] if c["option"] == plan["ranking"][0]["option"])
+    cell = browser.find_element("css selector", '#goal-table tr[data-row="0"] td[data-key="advantage_db"]')
+    assert _number(cell.text) == comp["goals"][0]["advantage_db"]
+    # 3. a goal's bearing span and its open share at the chosen hour
+    goal = browser.find_element("css selector", '#layer-goals [data-goal="Europe"]')
+    browser.execute_script("arguments[0].focus()", goal)
+    info = browser.find_element("id", "goal-info")
+    span = info.find_element("css selector", '[data-figure="bearing"]').text
+    ref = next(p for p in plan["goal_paths"] if p["name"] == "Europe")["bearing_deg"]
+    assert _number(span) == ref["start"]
+    assert _number(span.split(" to ")[1]) == ref["end"]
+    row = next(r for r in plan["schedule"] if r["option"] == comp["option"] and r["band"] == "40 m"
+               and r["month"] == MONTHS[0] and r["hour_utc"] == 0)
+    open_share = next(g["open_share"] for g in row["goals"] if g["name"] == "Europe")
+    shown = info.find_element("css selector", '[data-figure="open-share"]').text
+    assert _number(shown) / 100.0 == pytest.approx(open_share, abs=1e-12)
+
+
+@pytest.mark.parametrize("width,height", [(1280, 800), (380, 800)])
+def test_nothing_overflows_sideways(browser, pages, width, height, tmp_path):
+    browser.set_window_size(width, height)
+    try:
+        _open(browser, pages[0] / "plan.html")
+        sw, cw = browser.execute_script(
+            "return [document.documentElement.scrollWidth, document.documentElement.clientWidth]")
+        assert sw <= cw, f"{width} px: the page is {sw} px wide"
+        shot = tmp_path / f"page-{width}.png"
+        assert browser.save_screenshot(str(shot)) and shot.stat().st_size > 10000
+    finally:
+        browser.set_window_size(1280, 800)
