@@ -367,7 +367,7 @@
     var cw = 18, ch = 14, left = 78, top = 16, gap = 14;
     var height = top + bands.length * (ms.length * ch + gap + 12) + 8;
     var width = left + hs.length * cw + 8;
-    var s = sv("svg", { viewBox: "0 0 " + width + " " + height, width: width, style: "max-width:100%;height:auto", role: "img", id: "schedule-svg",
+    var s = sv("svg", { viewBox: "0 0 " + width + " " + height, width: Math.round(width * 1.45), style: "max-width:100%;height:auto", role: "img", id: "schedule-svg",
                         "aria-label": "schedule of " + opt + ": the state the schedule picks for each band, month and hour; the switch card below says the same in words" });
     hs.forEach(function (h, j) {
       if (j % 3 === 0) { s.appendChild(sv("text", { x: left + j * cw + cw / 2, y: 11, "font-size": 9, "text-anchor": "middle", fill: C.ink }, hh(h))); }
@@ -416,6 +416,7 @@
         var r = rowIndex[[opt, band, ui.month, h].join("\u0000")];
         var st = r ? (r.state || null) : undefined;
         var open = r ? (r.goals || []).filter(function (g) { return isNum(g.open_share) && g.open_share > 0; }).map(function (g) { return g.name; }) : [];
+        open = uniq(open);
         if (run && run.state === st && run.end === h) { run.end = h + 1; run.open = uniq(run.open.concat(open)); }
         else { run = { state: st, start: h, end: h + 1, open: open }; runs.push(run); }
       });
