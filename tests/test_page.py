@@ -237,7 +237,7 @@ def browser():
         drv, profile = start_chromium()
     except NoBrowser as exc:
         pytest.skip(str(exc))
-    setset_viewport(drv, 1280, 800)
+    set_viewport(drv, 1280, 800)
     yield drv
     drv.quit()
     shutil.rmtree(profile, ignore_errors=True)
