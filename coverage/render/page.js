@@ -203,12 +203,27 @@
   });
 
   var rings = layer("rings", "range rings");
-  var step = DRAW.ring_step_km;
+  var step = DRAW.ring_step_km, ringKm = [];
   for (var k = 1; k * step < R - 0.25 * step; k++) {
-    var d = k * step;
-    rings.appendChild(sv("circle", { cx: 0, cy: 0, r: d, fill: "none", stroke: C.ring, "stroke-width": 0.7, "stroke-dasharray": "3 3", "vector-effect": "non-scaling-stroke", "data-ring-km": d }));
-    var p = xy(200, d);
-    rings.appendChild(sv("text", { x: p[0], y: p[1], "font-size": 620, fill: "#3c474f", "text-anchor": "middle", "dominant-baseline": "middle", stroke: "#fff", "stroke-width": 180, "paint-order": "stroke" }, d.toLocaleString("en-US").replace(/,/g, "\u2009") + " km"));
+    ringKm.push(k * step);
+    rings.appendChild(sv("circle", { cx: 0, cy: 0, r: k * step, fill: "none", stroke: C.ring, "stroke-width": 0.7, "stroke-dasharray": "3 3", "vector-effect": "non-scaling-stroke", "data-ring-km": k * step }));
+  }
+  var ringLabels = sv("g");
+  rings.appendChild(ringLabels);
+  // ring labels go down a bearing clear of the baseline and of the goals' names
+  function placeRingLabels(thetaDeg) {
+    clear(ringLabels);
+    var busy = isNum(thetaDeg) ? [thetaDeg, thetaDeg + 180] : [];
+    DRAW.goals.forEach(function (g) { if (g.label_km) { busy.push(Math.atan2(g.label_km[0], -g.label_km[1]) * 180 / Math.PI); } });
+    var best = 200, room = -1;
+    [200, 160, 340, 20, 225, 135, 315, 45].forEach(function (c) {
+      var near = Math.min.apply(null, busy.map(function (b) { return Math.abs(((c - b) % 360 + 540) % 360 - 180); }).concat([180]));
+      if (near > room + 1e-9) { room = near; best = c; }
+    });
+    ringKm.forEach(function (d) {
+      var p = xy(best, d);
+      ringLabels.appendChild(sv("text", { x: p[0], y: p[1], "font-size": 620, fill: "#3c474f", "text-anchor": "middle", "dominant-baseline": "middle", stroke: "#fff", "stroke-width": 180, "paint-order": "stroke" }, d.toLocaleString("en-US").replace(/,/g, "\u2009") + " km"));
+    });
   }
   var bearings = layer("bearings", "bearings");
   for (var b = 0; b < 360; b += 10) {
@@ -221,6 +236,11 @@
     }
   }
   svg.appendChild(sv("circle", { cx: 0, cy: 0, r: R, fill: "none", stroke: C.ink, "stroke-width": 1.3, "vector-effect": "non-scaling-stroke" }));
+  var names = layer("names", "goal names");
+  DRAW.goals.forEach(function (g) {
+    if (!g.label_km) { return; }
+    names.appendChild(sv("text", { x: g.label_km[0], y: g.label_km[1], "font-size": 780, "font-weight": 600, fill: C.ink, "text-anchor": "middle", "dominant-baseline": "middle", stroke: "#fff", "stroke-width": 200, "stroke-opacity": 0.85, "paint-order": "stroke", "pointer-events": "none" }, g.name));
+  });
   var baseline = layer("baseline", "baseline");
   var lobes = layer("lobes", "lobes");
   svg.appendChild(sv("circle", { cx: 0, cy: 0, r: 180, fill: "#fff", stroke: C.ink, "stroke-width": 1.3, "vector-effect": "non-scaling-stroke" }));
@@ -258,6 +278,7 @@
 
     clear(baseline);
     var theta = comp ? comp.best_orientation_deg : null;
+    placeRingLabels(theta);
     if (isNum(theta)) {
       var a = xy(theta + 180, R), z = xy(theta, R), s0 = xy(theta + 180, 1100), s1 = xy(theta, 1100);
       baseline.appendChild(sv("line", { x1: a[0], y1: a[1], x2: z[0], y2: z[1], stroke: C.ink, "stroke-width": 0.8, "stroke-dasharray": "7 4", "vector-effect": "non-scaling-stroke" }));
@@ -333,7 +354,7 @@
     }
     box.appendChild(el("p", { "class": "legend-row" }, "Goals: advantage over one vertical, dB"));
     box.appendChild(bar);
-    [["url(#dots-closed)", C.closed, "closed (band does not reach it)"], [null, "#6d6a60", "not rated for the chosen state"]].forEach(function (e) {
+    [["url(#dots-closed)", C.closed, "closed (band does not reach it)"], [null, "#6d6a60", "not rated for the chosen state"], [null, "transparent", "outline only: not a goal on this band"]].forEach(function (e) {
       var row = el("p", { "class": "legend-row" });
       row.appendChild(el("span", { "class": "swatch", style: "background:" + e[1] }));
       row.appendChild(document.createTextNode(e[2]));

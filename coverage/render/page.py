@@ -106,6 +106,18 @@ def _projected_d(proj, src, geom, lines: bool = False) -> str:
     return "" if projected.is_empty else svg_path(projected)
 
 
+def _label_km(proj, src, geom) -> list[int] | None:
+    """Where a goal's name goes: a point inside its largest part, page km (y down)."""
+    parts = [p for p in getattr(geom, "geoms", [geom]) if not p.is_empty]
+    if not parts:
+        return None
+    pt = max(parts, key=lambda p: p.area).representative_point()
+    x, y = proj.transform_point(pt.x, pt.y, src)
+    if not (np.isfinite(x) and np.isfinite(y)):
+        return None
+    return [int(round(x / 1000.0)), int(round(-y / 1000.0))]
+
+
 def _option_lobes(site, plan, op, theta_deg: float) -> dict:
     """Lobe radii (km, whole numbers, 360 true bearings) per band and state."""
     from .scene import key_takeoff_deg, lobe_radius_km, true_bearing_row
@@ -143,7 +155,7 @@ def page_drawing(site, plan) -> dict:
             continue
         geom = goal_area(site, goal).geometry
         goals[goal.name] = {"name": goal.name, "fill": _projected_d(proj, src, geom),
-                            "edge": _projected_d(proj, src, geom, lines=True)}
+                            "edge": _projected_d(proj, src, geom, lines=True), "label_km": _label_km(proj, src, geom)}
     avoid = {}
     for goal in site.goals:
         for text in goal.avoid:
