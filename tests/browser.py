@@ -41,7 +41,7 @@ def start_chromium():
 
 
 def set_viewport(drv, width: int, height: int) -> None:
-    """Make the page's own viewport width x height (the window adds its frame)."""
-    drv.set_window_size(width, height)
-    inner = drv.execute_script("return [window.innerWidth, window.innerHeight]")
-    drv.set_window_size(2 * width - inner[0], 2 * height - inner[1])
+    """Make the page's own viewport width x height, whatever the window's frame and least size."""
+    drv.set_window_size(max(width, 800), height + 200)
+    drv.execute_cdp_cmd("Emulation.setDeviceMetricsOverride",
+                        {"width": width, "height": height, "deviceScaleFactor": 1, "mobile": False})

@@ -185,6 +185,10 @@
     var a = sv("g", { "class": "goal", tabindex: "0", role: "button", "data-goal": g.name });
     a.appendChild(sv("path", { "class": "fill", d: g.fill, "fill-rule": "evenodd", "fill-opacity": 0.82 }));
     a.appendChild(sv("path", { "class": "edge", d: g.edge || g.fill, fill: "none", stroke: C.ink, "stroke-width": 0.9, "vector-effect": "non-scaling-stroke" }));
+    if (g.label_km && g.size_km < 600) {  // too small to point at: a ring around it
+      a.appendChild(sv("circle", { "class": "fill", cx: g.label_km[0], cy: g.label_km[1], r: 420, "fill-opacity": 0.82 }));
+      a.appendChild(sv("circle", { "class": "edge", cx: g.label_km[0], cy: g.label_km[1], r: 420, fill: "none", stroke: C.ink, "stroke-width": 1.2, "vector-effect": "non-scaling-stroke" }));
+    }
     a.appendChild(sv("title", {}, g.name));
     function show() { ui.goal = g.name; markGoal(); renderInfo(); }
     a.addEventListener("mouseenter", show);
@@ -252,7 +256,8 @@
   function renderMap(sel) {
     var comp = compOption(ui.option);
     Object.keys(goalNodes).forEach(function (name) {
-      var node = goalNodes[name], fill = node.querySelector(".fill"), recs = sel.goals[name];
+      var node = goalNodes[name], fills = node.querySelectorAll(".fill"), recs = sel.goals[name];
+      var fill = { setAttribute: function (k, v) { fills.forEach(function (f) { f.setAttribute(k, v); }); } };
       var rated = (recs || []).filter(function (r) { return r.rated && isNum(r.advantage_db); });
       var label;
       if (!recs) {

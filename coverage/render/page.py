@@ -66,7 +66,10 @@ def _ring_d(xy_km: np.ndarray, closed: bool) -> str:
 
 
 def svg_path(geom) -> str:
-    """A projected shapely geometry (metres, y north) as an SVG path in km, y down."""
+    """A projected shapely geometry (metres, y north) as an SVG path in km, y down.
+
+    Every part is kept: small land parts are dropped before projecting
+    (:func:`_projected_d`), never a goal's."""
     out = []
 
     def xy(coords):
@@ -77,8 +80,6 @@ def svg_path(geom) -> str:
         if part.is_empty:
             continue
         if part.geom_type == "Polygon":
-            if part.area < _MIN_PART_KM2 * 1e6:
-                continue
             out.append(_ring_d(xy(part.exterior.coords), True))
             out += [_ring_d(xy(r.coords), True) for r in part.interiors]
         elif part.geom_type in ("LineString", "LinearRing"):
@@ -88,12 +89,25 @@ def svg_path(geom) -> str:
     return "".join(out)
 
 
-def _projected_d(proj, src, geom, lines: bool = False) -> str:
+def _big_parts(geom, min_km2: float):
+    """The polygon parts of a lon/lat geometry of at least ``min_km2`` (spherical
+    estimate: square degrees x 111.2 km squared x cos latitude), or None."""
+    from shapely.geometry import MultiPolygon
+
+    parts = [p for p in getattr(geom, "geoms", [geom]) if p.geom_type == "Polygon"]
+    keep = [p for p in parts
+            if p.area * 111.2 ** 2 * max(np.cos(np.radians(p.centroid.y)), 0.01) >= min_km2]
+    return MultiPolygon(keep) if keep else None
+
+
+def _projected_d(proj, src, geom, lines: bool = False, min_km2: float = 0.0) -> str:
     """Simplify in lon/lat, project as the maps do, and write the SVG path."""
     from shapely.geometry import MultiLineString
 
     from .azimap import outline_lines
 
+    if geom is not None and min_km2 > 0.0 and not geom.is_empty:
+        geom = _big_parts(geom, min_km2)
     if geom is None or geom.is_empty:
         return ""
     small = geom.simplify(SIMPLIFY_DEG, preserve_topology=True)
@@ -116,6 +130,15 @@ def _label_km(proj, src, geom) -> list[int] | None:
     if not (np.isfinite(x) and np.isfinite(y)):
         return None
     return [int(round(x / 1000.0)), int(round(-y / 1000.0))]
+
+
+def _size_km(proj, src, geom) -> int:
+    """The larger side of the goal's projected bounding box, km (small goals get a marker)."""
+    projected = proj.project_geometry(geom, src)
+    if projected.is_empty:
+        return 0
+    x0, y0, x1, y1 = projected.bounds
+    return int(round(max(x1 - x0, y1 - y0) / 1000.0))
 
 
 def _option_lobes(site, plan, op, theta_deg: float) -> dict:
@@ -145,17 +168,18 @@ def page_drawing(site, plan) -> dict:
     proj, src = azimap.projection(float(st.lon_deg), float(st.lat_deg))
     land, borders = [], []
     for geom in countries().geometry:
-        d = _projected_d(proj, src, geom)
+        d = _projected_d(proj, src, geom, min_km2=_MIN_PART_KM2)
         if d:
             land.append(d)
-            borders.append(_projected_d(proj, src, geom, lines=True))
+            borders.append(_projected_d(proj, src, geom, lines=True, min_km2=_MIN_PART_KM2))
     goals: dict[str, dict] = {}
     for goal in site.goals:
         if goal.name in goals:   # the long path of a goal: the same region
             continue
         geom = goal_area(site, goal).geometry
         goals[goal.name] = {"name": goal.name, "fill": _projected_d(proj, src, geom),
-                            "edge": _projected_d(proj, src, geom, lines=True), "label_km": _label_km(proj, src, geom)}
+                            "edge": _projected_d(proj, src, geom, lines=True), "label_km": _label_km(proj, src, geom),
+                            "size_km": _size_km(proj, src, geom)}
     avoid = {}
     for goal in site.goals:
         for text in goal.avoid:
