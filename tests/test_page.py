@@ -18,7 +18,7 @@ import pytest
 from browser import NoBrowser, set_viewport, start_chromium
 
 from lobeplan.fileio import atomic_write_json
-from lobeplan.render.page import page_drawing, script_json, svg_path, write_page
+from lobeplan.render.page import script_json, svg_path, write_page
 from lobeplan.report.plan import build_from_plan, run_plan
 from lobeplan.site import loads
 
@@ -95,23 +95,30 @@ MONTHS = (6, 12)
 
 
 def fake_schedule(result: dict, states_of: dict) -> list[dict]:
-    """Rows in the schedule's shape: state by hour and month, from the plan's own goal rows."""
+    """Rows in the schedule's shape: state by hour and month, from the plan's own goal rows.
+
+    As the schedule writes them: a row per option, band, month and hour; its
+    goals are those open in the slot (name, path, open share, advantage), so
+    the last hour, closed, lists none.
+    """
     rows = []
     for comp in result["spacing_comparison"]:
         states = states_of[comp["option"]]
-        for band in {g["band"] for g in comp["goals"]}:
+        for band in dict.fromkeys(g["band"] for g in comp["goals"]):
             goals = [g for g in comp["goals"] if g["band"] == band]
             for month in MONTHS:
                 for hour in range(24):
                     closed = hour == 23
                     state = None if closed else states[(hour // 2 + MONTHS.index(month)) % len(states)]
                     rows.append({
-                        "band": band, "month": month, "hour_utc": hour, "option": comp["option"], "state": state,
+                        "option": comp["option"], "orientation_deg": comp["best_orientation_deg"], "band": band,
+                        "month": month, "hour_utc": hour, "state": state,
                         "score_db": None if closed else round(1.0 + 0.05 * hour, 2),
-                        "goals": [{"name": g["goal"], "open_share": 0.0 if closed else round(0.1 + 0.08 * ((hour + i) % 10), 3),
-                                   "advantage_db": None if closed else round((g["advantage_db"] or 0.0) - 0.4 * (hour % 5), 2)}
-                                  for i, g in enumerate(goals)],
-                        "runner_up_state": states[0], "runner_up_score_db": 0.5})
+                        "goals": [] if closed else [
+                            {"name": g["goal"], "path": g["path"], "open_share": round(0.1 + 0.08 * ((hour + i) % 10), 3),
+                             "advantage_db": round((g["advantage_db"] or 0.0) - 0.4 * (hour % 5), 2)}
+                            for i, g in enumerate(goals)],
+                        "runner_up_state": None if closed else states[0], "runner_up_loss_db": None if closed else 0.5})
     return rows
 
 
@@ -185,7 +192,9 @@ def test_names_are_escaped(pages):
 def test_plan_verb_writes_the_page(tmp_path, write_site):
     from lobeplan.cli import main
 
-    path = write_site(SITE.replace("points_per_goal = 40", "points_per_goal = 20"))
+    from helpers import MINIMAL
+
+    path = write_site(MINIMAL + "[propagation]\npoints_per_goal = 20\n")
     assert main(["plan", str(path), "--out", str(tmp_path / "out"), "--date", "2026-01-02"]) == 0
     html = (tmp_path / "out" / "plan.html").read_text(encoding="utf-8")
     assert json.loads(_block(html, "plan-json")) == json.loads((tmp_path / "out" / "plan.json").read_text())
@@ -222,9 +231,12 @@ def test_svg_path_is_the_azimuthal_equidistant_map(pages):
     assert math.degrees(math.atan2(x_km, y_km)) % 360 == pytest.approx(az, abs=0.05)
 
 
+def _drawing(out) -> dict:
+    return json.loads(_block((out / "plan.html").read_text(encoding="utf-8"), "page-drawing"))
+
+
 def test_small_goals_are_kept_and_marked(pages):
-    _, _, site, plan = pages
-    drawing = page_drawing(site, plan)
+    drawing = _drawing(pages[0])
     reef = next(g for g in drawing["goals"] if g["name"] == "Reef")
     assert reef["fill"] and reef["size_km"] < 600     # 160 km across: drawn, and given a marker ring
     # land parts under 400 km2 are dropped, so the page stays small; the goal is not
@@ -232,8 +244,8 @@ def test_small_goals_are_kept_and_marked(pages):
 
 
 def test_lobes_reach_the_scale_peak(pages):
-    _, _, site, plan = pages
-    drawing = page_drawing(site, plan)
+    _, _, site, _ = pages
+    drawing = _drawing(pages[0])
     for op in drawing["options"]:
         for band, lobes in op["lobes_km"].items():
             assert set(lobes) == set(op["states"])

@@ -106,6 +106,14 @@
         var rec = out.goals[g.name] || (out.goals[g.name] = []);
         rec.push({ path: g.path || null, state: row.state, advantage_db: g.advantage_db, open_share: g.open_share, rated: rated });
       });
+      // goals of the band that the row leaves out are not open in this slot
+      (comp ? comp.goals : []).forEach(function (g) {
+        if (g.band !== ui.band) { return; }
+        var rec = out.goals[g.goal] || (out.goals[g.goal] = []);
+        if (!rec.some(function (r) { return !r.path || r.path === g.path; })) {
+          rec.push({ path: g.path, state: null, advantage_db: null, open_share: null, rated: true, closed: true });
+        }
+      });
       if (!row.state) { out.why = "No state serves an open goal at this hour: the band is closed to them."; }
       else if (ui.state !== "best" && ui.state !== row.state) {
         out.why = "The schedule rates only the state it picks at this hour (" + row.state + "); goals are shown unrated for " + ui.state + ".";
@@ -309,6 +317,9 @@
     else { line += ": no allowed bearing serves an open goal"; }
     if (sel.hourly) { line += "; " + monthName(ui.month) + " " + hh(ui.hour) + " UTC"; }
     if (sel.row && isNum(sel.row.score_db)) { line += ", score this hour " + db(sel.row.score_db); }
+    if (sel.row && sel.row.runner_up_state) {
+      line += " (runner-up " + sel.row.runner_up_state + (isNum(sel.row.runner_up_loss_db) ? ", loses " + num(sel.row.runner_up_loss_db, 2) + " dB" : "") + ")";
+    }
     line += "; lobes: " + (sel.lobes.length ? sel.lobes.join(", ") : "none (closed)");
     $("map-line").textContent = line;
     $("control-note").textContent = sel.why;
@@ -331,6 +342,7 @@
       kv("distance", km(p.distance_km.min) + " to " + km(p.distance_km.max) + " (median " + km(p.distance_km.median) + ")", { "data-figure": "distance" });
       recs.filter(function (r) { return !r.path || r.path === p.path; }).forEach(function (r) {
         var when = sel.hourly ? " at " + hh(ui.hour) + " UTC" : " (planned hours)";
+        if (r.closed) { kv(hh(ui.hour) + " UTC", "not open in this slot (the schedule lists it nowhere here)"); return; }
         kv("open share" + when, share(r.open_share), { "data-figure": "open-share" });
         kv("advantage" + when, r.rated ? db(r.advantage_db) : "not rated for " + ui.state, { "data-figure": "advantage" });
         kv("state", r.state || "closed");

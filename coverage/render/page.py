@@ -23,6 +23,7 @@ J. P. Snyder, "Map Projections: A Working Manual", USGS Professional Paper
 """
 from __future__ import annotations
 
+import functools
 import json
 from importlib import resources
 from pathlib import Path
@@ -159,19 +160,30 @@ def _option_lobes(site, plan, op, theta_deg: float) -> dict:
     return bands
 
 
-def page_drawing(site, plan) -> dict:
-    """Everything the page draws but does not print: outlines, lobe radii, colours."""
-    from ..geo.regions import countries, goal_area, region_area
-    from . import azimap
+@functools.lru_cache(maxsize=4)
+def _land(lon_deg: float, lat_deg: float) -> tuple[tuple[str, ...], tuple[str, ...]]:
+    """Land fills and outlines (SVG paths) for one station, kept for later pages."""
+    from ..geo.regions import countries
+    from .azimap import projection
 
-    st = site.station
-    proj, src = azimap.projection(float(st.lon_deg), float(st.lat_deg))
+    proj, src = projection(lon_deg, lat_deg)
     land, borders = [], []
     for geom in countries().geometry:
         d = _projected_d(proj, src, geom, min_km2=_MIN_PART_KM2)
         if d:
             land.append(d)
             borders.append(_projected_d(proj, src, geom, lines=True, min_km2=_MIN_PART_KM2))
+    return tuple(land), tuple(b for b in borders if b)
+
+
+def page_drawing(site, plan) -> dict:
+    """Everything the page draws but does not print: outlines, lobe radii, colours."""
+    from ..geo.regions import goal_area, region_area
+    from . import azimap
+
+    st = site.station
+    proj, src = azimap.projection(float(st.lon_deg), float(st.lat_deg))
+    land, borders = _land(float(st.lon_deg), float(st.lat_deg))
     goals: dict[str, dict] = {}
     for goal in site.goals:
         if goal.name in goals:   # the long path of a goal: the same region
@@ -204,8 +216,8 @@ def page_drawing(site, plan) -> dict:
                     "ring": azimap.RING, "avoid": azimap.AVOID, "closed": azimap.CLOSED,
                     "states": list(azimap.STATE_COLOURS), "goal_stops": stops,
                     "advantage_range_db": azimap.ADVANTAGE_RANGE_DB},
-        "land": land,
-        "borders": [b for b in borders if b],
+        "land": list(land),
+        "borders": list(borders),
         "goals": list(goals.values()),
         "avoid": list(avoid.values()),
         "options": options,
