@@ -129,7 +129,7 @@ def fake_stakes(result: dict) -> list[dict]:
                            "lat_deg": 45.0, "lon_deg": -93.0},
                           {"element": 2, "along_m": 10.5, "across_m": 0.0, "north_m": 10.1, "east_m": 2.9,
                            "lat_deg": 45.000091, "lon_deg": -92.999963}],
-             "junction": {"along_m": 5.25, "across_m": 0.0}, "runs": [{"element": 1, "length_m": 6.0},
+             "junction": {"along_m": 5.25, "across_m": 0.0, "north_m": 5.05, "east_m": 1.45}, "runs": [{"element": 1, "length_m": 6.0},
                                                                       {"element": 2, "length_m": 13.0}]}]
 
 
@@ -304,6 +304,28 @@ def test_loads_offline_without_errors(browser, pages, capsys):
     assert browser.find_element("id", "station-name").text == EVIL_STATION
     assert EVIL_GOAL in browser.find_element("id", "goal-table").text
     assert browser.find_elements("css selector", "b") == []
+
+
+def test_sections_follow_their_data(browser, pages):
+    from selenium.webdriver.support.ui import Select
+
+    out, result, _, _ = pages
+    _open(browser, out / "plan.html")
+    staked = result["stakes"][0]["option"]
+    Select(browser.find_element("id", "ctl-option")).select_by_value(staked)
+    rows = browser.find_elements("css selector", "#stakes-table tbody tr")
+    assert [r.find_element("css selector", "td").text for r in rows] == ["1", "2"]
+    other = next(c["option"] for c in result["spacing_comparison"] if c["option"] != staked)
+    Select(browser.find_element("id", "ctl-option")).select_by_value(other)
+    assert "No staking plan for" in browser.find_element("id", "stakes").text
+    cells = browser.find_elements("css selector", "#schedule-svg rect[data-hour]")
+    assert len(cells) == 2 * len(MONTHS) * 24          # two bands x months x hours
+    # a plan without a schedule or stakes says so, and its month and hour controls are off
+    _open(browser, out / "evil" / "plan.html")
+    assert "no hour-by-hour schedule" in browser.find_element("id", "schedule-fig").text
+    assert "no staking plan" in browser.find_element("id", "stakes").text
+    assert not browser.find_element("id", "ctl-month").is_enabled()
+    assert not browser.find_element("id", "ctl-hour").is_enabled()
 
 
 def _drawn(drv) -> str:

@@ -517,10 +517,42 @@
     if (typeof v === "object") { return JSON.stringify(v); }
     return String(v);
   }
+  var UNITS = { m: "m", deg: "\u00b0", db: "dB", dbi: "dBi", ohm: "\u03a9", km: "km", mhz: "MHz" };
+  function heading(key) {
+    var m = /^(.*)_(m|deg|db|dbi|ohm|km|mhz)$/.exec(key);
+    return m ? m[1].replace(/_/g, " ") + " (" + UNITS[m[2]] + ")" : key.replace(/_/g, " ");
+  }
+  // a ground plan of the stakes: north up, element numbers only (the figures are in the table)
+  function groundPlan(entry) {
+    var pts = (entry.elements || []).filter(function (e) { return isNum(e.north_m) && isNum(e.east_m); });
+    if (!pts.length) { return null; }
+    var j = entry.junction && isNum(entry.junction.north_m) && isNum(entry.junction.east_m) ? entry.junction : null;
+    var all = pts.concat(j ? [j] : []);
+    var n0 = Math.min.apply(null, all.map(function (e) { return e.north_m; })), n1 = Math.max.apply(null, all.map(function (e) { return e.north_m; }));
+    var e0 = Math.min.apply(null, all.map(function (e) { return e.east_m; })), e1 = Math.max.apply(null, all.map(function (e) { return e.east_m; }));
+    var span = Math.max(n1 - n0, e1 - e0, 1), size = 220, pad = 30, k = (size - 2 * pad) / span;
+    var cx = (e0 + e1) / 2, cy = (n0 + n1) / 2;
+    function at(e) { return [size / 2 + (e.east_m - cx) * k, size / 2 - (e.north_m - cy) * k]; }
+    var s = sv("svg", { viewBox: "0 0 " + size + " " + size, width: size, id: "stakes-plan", role: "img", "aria-label": "ground plan of the stakes, north up" });
+    s.appendChild(sv("rect", { x: 0.5, y: 0.5, width: size - 1, height: size - 1, fill: "#fff", stroke: "#d9d2bf" }));
+    s.appendChild(sv("path", { d: "M18 34L18 12M12 20L18 12L24 20", stroke: C.ink, fill: "none", "stroke-width": 1.4 }));
+    s.appendChild(sv("text", { x: 18, y: 46, "font-size": 11, "text-anchor": "middle", fill: C.ink }, "N"));
+    if (j) {
+      var q = at(j);
+      pts.forEach(function (e) { var p = at(e); s.appendChild(sv("line", { x1: q[0], y1: q[1], x2: p[0], y2: p[1], stroke: C.ring, "stroke-dasharray": "3 2" })); });
+      s.appendChild(sv("rect", { x: q[0] - 5, y: q[1] - 5, width: 10, height: 10, fill: C.land, stroke: C.ink }));
+    }
+    pts.forEach(function (e) {
+      var p = at(e);
+      s.appendChild(sv("circle", { cx: p[0], cy: p[1], r: 6, fill: C.states[0], stroke: "#fff", "stroke-width": 1.5 }));
+      s.appendChild(sv("text", { x: p[0] + 9, y: p[1] - 8, "font-size": 12, "font-weight": 700, fill: C.ink }, e.element));
+    });
+    return s;
+  }
   function objectTable(rows, id) {
     var keys = uniq([].concat.apply([], rows.map(function (r) { return r && typeof r === "object" ? Object.keys(r) : []; })));
     var t = el("table", id ? { id: id } : {}), head = el("tr");
-    keys.forEach(function (k) { head.appendChild(el("th", { scope: "col" }, k.replace(/_/g, " "))); });
+    keys.forEach(function (k) { head.appendChild(el("th", { scope: "col" }, heading(k))); });
     t.appendChild(el("thead")).appendChild(head);
     var body = el("tbody");
     rows.forEach(function (r) {
@@ -541,6 +573,8 @@
       return;
     }
     box.appendChild(el("p", {}, entry.option + ": baseline along " + deg(entry.orientation_deg) + ". Element positions from element 1; north and east on the ground, latitude and longitude to set out with a receiver."));
+    var plan = groundPlan(entry);
+    if (plan) { box.appendChild(plan); }
     box.appendChild(objectTable(entry.elements || [], "stakes-table"));
     if (entry.junction !== undefined && entry.junction !== null) {
       box.appendChild(el("h3", {}, "Junction"));
