@@ -43,7 +43,8 @@
   var months = uniq(schedule.map(function (r) { return r.month; })).filter(isNum).sort(function (a, b) { return a - b; });
   var hours = uniq(schedule.map(function (r) { return r.hour_utc; })).filter(isNum).sort(function (a, b) { return a - b; });
   var rowIndex = {};
-  schedule.forEach(function (r) { rowIndex[[r.option, r.band, r.month, r.hour_utc].join("\u0000")] = r; });
+  var scheduled = {};
+  schedule.forEach(function (r) { rowIndex[[r.option, r.band, r.month, r.hour_utc].join("\u0000")] = r; scheduled[r.option] = true; });
 
   function drawOption(name) {
     for (var i = 0; i < DRAW.options.length; i++) { if (DRAW.options[i].option === name) { return DRAW.options[i]; } }
@@ -91,7 +92,7 @@
   function selection() {
     var out = { goals: {}, lobes: [], hourly: false, row: null, why: "" };
     var comp = compOption(ui.option);
-    if (schedule.length) {
+    if (scheduled[ui.option]) {
       var row = scheduleRow();
       out.hourly = true;
       out.row = row;
@@ -120,6 +121,7 @@
       }
       return out;
     }
+    if (schedule.length) { out.why = "The schedule holds no rows for " + ui.option + ": it is shown over all the planned hours."; }
     var rows = comp ? comp.goals.filter(function (g) { return g.band === ui.band; }) : [];
     rows.forEach(function (g) {
       var rated = ui.state === "best" || ui.state === g.state;
@@ -132,7 +134,7 @@
     } else {
       out.lobes = [ui.state];
       if (rows.some(function (g) { return g.state && g.state !== ui.state; })) {
-        out.why = "plan.json rates each goal in its own best state; goals served by another state are shown unrated.";
+        out.why = (out.why ? out.why + " " : "") + "plan.json rates each goal in its own best state; goals served by another state are shown unrated.";
       }
     }
     return out;
@@ -400,6 +402,12 @@
       card.appendChild(el("p", { "class": "sub" }, "No switch card without a schedule."));
       return;
     }
+    if (!scheduled[ui.option]) {
+      fig.appendChild(el("p", { "class": "sub" }, "The schedule holds no rows for " + ui.option + "."));
+      $("card-title").textContent = "Switch card";
+      card.appendChild(el("p", { "class": "sub" }, "No switch card for this option."));
+      return;
+    }
     var opt = ui.option, bands = DRAW.bands, ms = months.length ? months : [null];
     var hs = hours.length ? hours : [0];
     var cw = 18, ch = 14, left = 78, top = 16, gap = 14;
@@ -618,7 +626,7 @@
     fillSelect($("ctl-band"), DRAW.bands.map(function (b) { return [b, b]; }), ui.band);
     var states = drawOption(ui.option).states;
     if (ui.state !== "best" && states.indexOf(ui.state) < 0) { ui.state = "best"; }
-    fillSelect($("ctl-state"), [["best", schedule.length ? "best (follows the schedule)" : "best (each goal's own)"]].concat(states.map(function (s) { return [s, s]; })), ui.state);
+    fillSelect($("ctl-state"), [["best", scheduled[ui.option] ? "best (follows the schedule)" : "best (each goal's own)"]].concat(states.map(function (s) { return [s, s]; })), ui.state);
     var mSel = $("ctl-month"), hIn = $("ctl-hour");
     if (months.length) {
       fillSelect(mSel, months.map(function (m) { return [m, monthName(m)]; }), ui.month);
