@@ -15,6 +15,8 @@ import re
 import shutil
 
 import pytest
+from hypothesis import given
+from hypothesis import strategies as st
 from browser import NoBrowser, set_viewport, start_chromium
 
 from lobeplan.fileio import atomic_write_json
@@ -187,6 +189,16 @@ def test_names_are_escaped(pages):
     drawing = json.loads(_block(html, "page-drawing"))
     assert [g["name"] for g in drawing["goals"]] == [EVIL_GOAL]
     assert json.loads(script_json({"a": "</script><!--&\u2028"})) == {"a": "</script><!--&\u2028"}
+
+
+@given(st.recursive(st.text() | st.integers() | st.none(),
+                    lambda inner: st.lists(inner, max_size=3) | st.dictionaries(st.text(), inner, max_size=3),
+                    max_leaves=8))
+def test_script_json_round_trips_and_cannot_close_the_block(value):
+    text = script_json(value)
+    assert json.loads(text) == value
+    # HTML ends a script block at "</script" and comments at "<!--": no "<" survives at all
+    assert "<" not in text and ">" not in text and "&" not in text
 
 
 def test_plan_verb_writes_the_page(tmp_path, write_site):

@@ -599,7 +599,7 @@
     var st = PLAN.station || {};
     $("station-name").textContent = st.name || "Plan";
     document.title = (st.name || "Plan") + " \u2014 lobeplan plan";
-    $("station-line").textContent = [st.locator, isNum(st.lat_deg) ? st.lat_deg.toFixed(4) + "\u00b0, " + st.lon_deg.toFixed(4) + "\u00b0" : null,
+    $("station-line").textContent = [st.locator, isNum(st.lat_deg) ? "lat " + st.lat_deg + "\u00b0, lon " + st.lon_deg + "\u00b0" : null,
       "propagation model: " + PLAN.model].filter(Boolean).join("  \u00b7  ");
     var best = (PLAN.ranking || [])[0];
     $("best-line").textContent = best ? "Best: " + best.option + ", baseline along " + deg(best.orientation_deg) + ", score " + db(best.score_db) + " over one vertical"
