@@ -1,8 +1,12 @@
-"""Timing of one array pattern (4 elements, one band, one state, 1 x 1 deg grid).
+"""Timing of one array pattern (4 elements, one band, one state, 1 x 1 deg grid),
+and of one band's pattern figure.
 
 Prints JSON timings in milliseconds. Not a timed test: run it by hand,
 ``python benchmarks/pattern.py``. "cold" includes the moment-method solve
 (a fresh frequency every call, so the cache never hits); "warm" reuses it.
+The figure is the demo's 40 m figure of its four-state option (geometry
+model, so the needs do not dominate); its first drawing includes importing
+matplotlib. Budgets: 50 ms per solve, 2 s per figure.
 """
 from __future__ import annotations
 
@@ -47,5 +51,37 @@ def main(repeats: int = 30) -> dict:
     return out
 
 
+def figure(repeats: int = 3) -> dict:
+    """One band's figure of ``lobeplan pattern`` on the demo site, PNG to a temporary folder."""
+    import tempfile
+    from pathlib import Path
+    from types import SimpleNamespace
+
+    from lobeplan.report import pattern as pattern_verb
+    from lobeplan.site import loads
+
+    demo = Path(__file__).resolve().parent.parent / "data" / "demo" / "site.toml"
+    text = demo.read_text().replace('model = "climatology"', 'model = "geometry"')
+    site = loads(text, file=str(demo), base_dir=str(demo.parent))
+    rows = pattern_verb.build(site, SimpleNamespace(band="40 m", state=None, json=True))["patterns"]
+    block = [r for r in rows if r["option"] == rows[0]["option"]]
+    times, cpu = [], []
+    with tempfile.TemporaryDirectory() as tmp:
+        t0, c0 = time.perf_counter(), time.process_time()
+        from lobeplan.render.goalchart import draw_band_figure
+
+        for i in range(repeats):
+            draw_band_figure(block, Path(tmp) / f"f{i}.png", site.station.name)
+            t1, c1 = time.perf_counter(), time.process_time()
+            times.append(t1 - t0)
+            cpu.append(c1 - c0)
+            t0, c0 = t1, c1
+    # CPU time beside wall time: on a shared machine the wall clock also
+    # counts other processes' turns
+    return {"figure_states": len(block), "figure_first_s": round(times[0], 3),
+            "figure_s_median": round(statistics.median(times[1:] or times), 3),
+            "figure_cpu_s_median": round(statistics.median(cpu[1:] or cpu), 3), "figure_budget_s": 2.0}
+
+
 if __name__ == "__main__":
-    print(json.dumps({**main(), "peak_rss_mb": _peak_rss_mb()}, indent=2))
+    print(json.dumps({**main(), **figure(), "peak_rss_mb": _peak_rss_mb()}, indent=2))

@@ -32,8 +32,8 @@ VERBS = {
     "paths": ("lobeplan.report.paths", "bearings and distances (short and long path) to every goal region"),
     "needs": ("lobeplan.report.needs", "takeoff angles each band needs to reach each goal, and the hours "
               "it is open"),
-    "pattern": ("lobeplan.report.pattern", "array patterns in azimuth and elevation: peak gain, "
-                "front-to-back, beamwidth"),
+    "pattern": ("lobeplan.report.pattern", "every switch state against the goals: gain and advantage toward "
+                "each, lobes, front-to-back, beam width, RDF; figures and gain grids with --out"),
     "feed": ("lobeplan.report.feed", "coupled impedances, true element currents, feed-point impedances, "
              "line design and match"),
     "map": ("lobeplan.report.map", "azimuthal-equidistant map per band with the lobes and goals"),

@@ -14,7 +14,7 @@ from pathlib import Path
 from typing import Any
 
 from .antenna.layout import layout_positions_m
-from .antenna.model import GROUND_CLASSES, ArrayOption, ArraySpec, Feed, Ground, State
+from .antenna.model import GROUND_CLASSES, USES, ArrayOption, ArraySpec, Feed, Ground, State
 from .errors import SiteError
 from .geo import locator as _locator
 from .geo.station import Station
@@ -235,8 +235,9 @@ def load(path: str | Path) -> Site:
 _TOP = ("station", "array", "feed", "band", "goal", "propagation", "map")
 _STATION = ("name", "locator", "lat", "lon")
 _ARRAY = ("height_m", "radius_m", "layout", "spacing_m", "elements", "positions_m", "orientation_deg",
-          "orientation_step_deg", "allowed_orientation_deg", "ground", "ground_loss_ohm", "state", "option")
-_OPTION = ("name", "layout", "spacing_m", "elements", "positions_m", "state")
+          "orientation_step_deg", "allowed_orientation_deg", "ground", "ground_loss_ohm", "state", "option",
+          "use", "rdf_elevation_deg")
+_OPTION = ("name", "layout", "spacing_m", "elements", "positions_m", "state", "use")
 _STATE = ("name", "phase_deg", "amplitude", "line_m")
 _FEED = ("z0_ohm", "velocity_factor", "loss_db_per_100m_at_10mhz")
 _BAND = ("name", "freq_mhz", "edges_mhz")
@@ -265,6 +266,7 @@ def loads(text: str, file: str = "<site>", base_dir: str = ".") -> Site:
     station = _station(r, doc["station"])
     array, orientation = _array(r, doc["array"], doc.get("feed", {}))
     bands = _bands(r, doc["band"])
+    _check_receive_only(r, array, doc["band"])
     goals = _goals(r, doc["goal"], bands)
     _check_height(r, array, bands)
     prop = _propagation(r, doc.get("propagation", {}))
@@ -286,6 +288,22 @@ def _check_height(r: _Reader, array: ArraySpec, bands: tuple[Band, ...]) -> None
                          f"{MAX_HEIGHT_WAVELENGTHS:g} wavelength")
 
 
+def _check_receive_only(r: _Reader, array: ArraySpec, band_tables: Any) -> None:
+    """Refuse transmit-only keys when no option transmits (issue 14).
+
+    Band edges serve only the SWR of the transmit match; a receive option
+    gets no match, so on a site whose options all receive they would be
+    silently ignored.
+    """
+    if not all(o.receive for o in array.options):
+        return
+    for i, t in enumerate(r.tables(band_tables, "band")):
+        if "edges_mhz" in t:
+            raise r.fail(f"band[{i + 1}].edges_mhz", "band edges serve only the SWR of a transmit match, and "
+                         "every option of this site has use = \"receive\"; drop edges_mhz or add a "
+                         "transmit option")
+
+
 def height_caveats(site: "Site") -> tuple[str, ...]:
     """Plain sentences for bands where the element model is least sure."""
     out = []
@@ -295,6 +313,8 @@ def height_caveats(site: "Site") -> tuple[str, ...]:
             out.append(f"On {b.name} the elements are {h:.2f} wavelength tall, near an anti-resonance: the base "
                        "impedance (and so the currents of fed states, the line design and the match) is uncertain "
                        "by tens of percent; forced-current patterns are not affected as much.")
+        elif h < 0.1 and all(o.receive for o in site.array.options):
+            continue  # short receiving elements: directivity does not hang on their impedance
         elif h > 0.75 or h < 0.1:
             out.append(f"On {b.name} the elements are {h:.2f} wavelength tall, outside the 0.1-0.75 wavelength "
                        "range the element model is checked over.")
@@ -449,7 +469,7 @@ def _array(r: _Reader, t: Any, feed_t: Any) -> tuple[ArraySpec, Orientation]:
                     what="a series ground-loss resistance in ohm, 0 to 1000")
     options: list[ArrayOption] = []
     if "option" in t:
-        for name in ("layout", "spacing_m", "elements", "positions_m", "state"):
+        for name in ("layout", "spacing_m", "elements", "positions_m", "state", "use"):
             if name in t:
                 raise r.fail(_join(key, name), "give it inside each [[array.option]] block, "
                              "not beside them")
@@ -464,20 +484,24 @@ def _array(r: _Reader, t: Any, feed_t: Any) -> tuple[ArraySpec, Orientation]:
             pos = _positions(r, ot, k, layout, sp, radius)
             states = _option_states(r, ot, k, len(pos), layout)
             name = r.string(ot, "name", k, default=_option_name(layout, sp, len(pos)))
-            options.append(ArrayOption(name, layout, sp, pos, states))
+            use = r.string(ot, "use", k, default="transmit", choices=USES)
+            options.append(ArrayOption(name, layout, sp, pos, states, use))
     else:
         layout = r.string(t, "layout", key, default="pair", choices=LAYOUTS)
         spacings: tuple[float | None, ...] = (None,) if layout in ("single", "custom") else _spacings(r, t, key)
+        use = r.string(t, "use", key, default="transmit", choices=USES)
         for sp in spacings:
             pos = _positions(r, t, key, layout, sp, radius)
             states = _option_states(r, t, key, len(pos), layout)
-            options.append(ArrayOption(_option_name(layout, sp, len(pos)), layout, sp, pos, states))
+            options.append(ArrayOption(_option_name(layout, sp, len(pos)), layout, sp, pos, states, use))
     names = [o.name for o in options]
     if len(set(names)) != len(names):
         raise r.fail("array.option", "two options share a name; option names must differ")
     feed = _feed(r, feed_t)
     orientation = _orientation(r, t)
-    return ArraySpec(height, radius, ground, loss, feed, tuple(options)), orientation
+    rdf_el = r.number(t, "rdf_elevation_deg", key, default=20.0, lo=1.0, hi=89.0,
+                      what="a takeoff angle from 1 to 89 deg for the receiving directivity factor")
+    return ArraySpec(height, radius, ground, loss, feed, tuple(options), rdf_el), orientation
 
 
 def _option_states(r: _Reader, t: dict, key: str, n: int, layout: str) -> tuple[State, ...]:

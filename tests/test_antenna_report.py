@@ -57,13 +57,16 @@ def _args(**kw):
 KEYS = {"band", "option", "state", "spacing_m", "orientation_deg", "peak_gain_dbi", "peak_azimuth_deg",
         "peak_elevation_deg", "front_to_back_db", "front_to_rear_db", "beamwidth_deg", "element_currents",
         "feedpoint_impedance_ohm", "azimuth_deg", "elevation_deg", "gain_dbi"}
+# issue 14: the goal-centred and receiving figures
+KEYS_14 = {"use", "orientation_from", "key_takeoff_deg", "lobes", "sky_mean_gain_dbi", "rdf_db",
+           "rdf_elevation_deg", "goals"}
 
 
 def test_pattern_json_shape_and_rotation():
     res = pattern_verb.build(_site(orientation=30), _args())
     json.loads(dumps_json(res))  # strict JSON: raises on NaN/Infinity
     (p,) = res["patterns"]
-    assert set(p) == KEYS
+    assert set(p) == KEYS | KEYS_14
     assert p["orientation_deg"] == 30.0 and p["spacing_m"] == 10.5
     # beam along the baseline bearing: 30 deg true (DESIGN.md convention)
     assert p["peak_azimuth_deg"] == 30.0
@@ -106,7 +109,9 @@ def test_pattern_files(tmp_path):
     site = _site()
     res = pattern_verb.build(site, _args())
     files = pattern_verb.write_files(site, _args(), res, tmp_path)
-    assert len(files) == 1 and files[0].suffix == ".png" and files[0].stat().st_size > 1000
+    # pattern.json, one figure for the band and option, one gain grid per state
+    assert [f.suffix for f in files] == [".json", ".png", ".csv"]
+    assert files[1].stat().st_size > 1000
     assert "fwd" in pattern_verb.format_text(res)
 
 

@@ -3,7 +3,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["Ground", "GROUND_CLASSES", "Feed", "State", "ArrayOption", "ArraySpec"]
+__all__ = ["Ground", "GROUND_CLASSES", "Feed", "State", "ArrayOption", "ArraySpec", "USES"]
 
 
 @dataclass(frozen=True, slots=True)
@@ -65,13 +65,19 @@ class State:
         return self.line_m is not None
 
 
+USES = ("transmit", "receive")
+"""What an option is for (``use`` of an option in the site file)."""
+
+
 @dataclass(frozen=True, slots=True)
 class ArrayOption:
     """One way to build the array: a layout, its element positions, its states.
 
     ``positions_m`` are (along, across) in metres in the array frame: along
     points along the baseline bearing, across 90 deg clockwise from it.
-    Element 1 is at the origin.
+    Element 1 is at the origin. ``use`` is "transmit" or "receive": a
+    receive option is scored by directivity over the sky mean, not gain, and
+    gets no match or exposure estimate (see :mod:`lobeplan.antenna.receive`).
     """
 
     name: str
@@ -79,6 +85,11 @@ class ArrayOption:
     spacing_m: float | None
     positions_m: tuple[tuple[float, float], ...]
     states: tuple[State, ...]
+    use: str = "transmit"
+
+    @property
+    def receive(self) -> bool:
+        return self.use == "receive"
 
     @property
     def n_elements(self) -> int:
@@ -95,3 +106,4 @@ class ArraySpec:
     ground_loss_ohm: float
     feed: Feed
     options: tuple[ArrayOption, ...]
+    rdf_elevation_deg: float = 20.0  # takeoff angle of the receiving directivity factor

@@ -15,6 +15,10 @@ and w_g the goal weight. The score is thus a mean advantage in dB over one
 vertical. All bearings come from one circular cross-correlation per
 (goal, band, state) (see :mod:`lobeplan.plan.sweep`).
 
+An option with ``use = "receive"`` is scored the same way with directivity
+over the sky mean (:mod:`lobeplan.antenna.receive`) in place of gain, for
+the array and for the reference vertical alike.
+
 The site argument is duck-typed on :class:`lobeplan.site.Site`.
 """
 from __future__ import annotations
@@ -25,6 +29,7 @@ from typing import Callable
 import numpy as np
 
 from ..antenna.pattern import array_pattern, vertical_gain_dbi
+from ..antenna.receive import directivity_dbi
 from ..geo.paths import goal_paths
 from ..geo.regions import region_points
 from ..grid import N_AZIMUTH
@@ -32,7 +37,8 @@ from ..propagation.needs import Needs, band_needs, prepare_goal
 from .sweep import correlate, floored, orientations, spectrum, weighted_quantile
 
 __all__ = ["avoid_credit_cap_db", "GoalBand", "OptionPlan", "Plan", "RankEntry", "GoalRow", "make_plan", "needs_for_site",
-           "in_allowed", "distinct_maxima", "score_option", "prepare_needs", "symmetry_order", "goal_rows"]
+           "in_allowed", "distinct_maxima", "score_option", "prepare_needs", "symmetry_order", "goal_rows",
+           "receive_reference", "as_directivity"]
 
 DISTINCT_DEG = 10.0  # ranking: maxima at least this far apart
 WINDOW_DB = 1.0      # orientation sensitivity: bearings within this of the best
@@ -108,6 +114,11 @@ class OptionPlan:
     best_state: np.ndarray             # (n_goalband, n_theta) index of that state
     state_names: tuple[str, ...]
     patterns: dict = field(repr=False, default_factory=dict)   # (band, state) -> ArrayResult
+    # receive options (issue 14) are scored by directivity over the sky mean
+    # (``patterns`` still hold gain, for the maps); the reference is then one
+    # vertical's directivity
+    use: str = "transmit"
+    reference_db: dict | None = field(repr=False, default=None)   # band -> (91,), receive only
 
 
 @dataclass(frozen=True)
@@ -207,12 +218,20 @@ def make_plan(site, goal_bands: tuple[GoalBand, ...] | None = None,
 
     method = "direct" if fixed else "fft"
     option_plans = []
+    receive_ref: list = []  # [(reference directivity, prepared needs)], made once if any option receives
     for option in spec.options:
         patterns = {(band_name, s.name): array_pattern(spec, option, s, f)
                     for band_name, f in bands.items() for s in option.states}
-        values, best_state = score_option(option, patterns, goal_bands, prepared, thetas, orient.step_deg,
+        option_prepared, option_ref, scored = prepared, None, patterns
+        if option.receive:
+            if not receive_ref:
+                rx = receive_reference(ref)
+                receive_ref.append((rx, prepare_needs(goal_bands, rx)))
+            option_ref, option_prepared = receive_ref[0]
+            scored = as_directivity(patterns)
+        values, best_state = score_option(option, scored, goal_bands, option_prepared, thetas, orient.step_deg,
                                           method)
-        weights = np.array([gb.weight * pre["open"] for gb, pre in zip(goal_bands, prepared)])
+        weights = np.array([gb.weight * pre["open"] for gb, pre in zip(goal_bands, option_prepared)])
         open_rows = np.isfinite(values[:, 0]) & (weights > 0)
         if open_rows.any():
             score = (weights[open_rows, None] * values[open_rows]).sum(axis=0) / weights[open_rows].sum()
@@ -221,9 +240,33 @@ def make_plan(site, goal_bands: tuple[GoalBand, ...] | None = None,
         best_theta, best_score, window = _best(thetas, score, allowed)
         option_plans.append(OptionPlan(option.name, option.layout, option.spacing_m, thetas, score,
                                        allowed, best_theta, best_score, window, values, best_state,
-                                       tuple(s.name for s in option.states), patterns))
+                                       tuple(s.name for s in option.states), patterns, option.use, option_ref))
     ranking = _ranking(site, goal_bands, option_plans, ref)
     return Plan(tuple(goal_bands), tuple(option_plans), ranking, ref, caveats)
+
+
+# --- receive options (issue 14) ---------------------------------------------
+# On receive the sky's noise sets the signal-to-noise ratio, so a receive
+# option is scored by its directivity over the sky mean (the solid-angle mean
+# gain over the upper hemisphere) against one vertical's directivity, not by
+# gain: a short lossy receiving array is then judged by what it hears, not by
+# the power it would radiate.
+
+def receive_reference(ref: dict) -> dict:
+    """One vertical's directivity over the sky mean per band, (91,) dB each."""
+    return {band: directivity_dbi(g) for band, g in ref.items()}
+
+
+def as_directivity(patterns: dict) -> dict:
+    """The option's patterns with ``gain_dbi`` replaced by directivity over the sky mean."""
+    from dataclasses import replace
+
+    out = {}
+    for k, r in patterns.items():
+        d = directivity_dbi(r.gain_dbi)
+        d.flags.writeable = False
+        out[k] = replace(r, gain_dbi=d)
+    return out
 
 
 def prepare_needs(goal_bands, ref: dict) -> list[dict]:
@@ -369,6 +412,8 @@ def distinct_maxima(thetas: np.ndarray, score: np.ndarray, allowed: np.ndarray,
 
 
 def goal_rows(plan_option: OptionPlan, goal_bands, theta_index: int, ref: dict) -> tuple[GoalRow, ...]:
+    if plan_option.reference_db is not None:  # a receive option: directivity against the vertical's
+        ref = plan_option.reference_db
     rows = []
     theta = float(plan_option.orientation_deg[theta_index])
     for i, gb in enumerate(goal_bands):
@@ -380,7 +425,10 @@ def goal_rows(plan_option: OptionPlan, goal_bands, theta_index: int, ref: dict) 
             continue
         s_idx = int(plan_option.best_state[i, theta_index])
         s_name = plan_option.state_names[s_idx]
-        g = _rotate(floored(plan_option.patterns[(gb.band_name, s_name)].gain_dbi), theta)
+        g = plan_option.patterns[(gb.band_name, s_name)].gain_dbi
+        if plan_option.reference_db is not None:  # receive: directivity, as it was scored
+            g = directivity_dbi(g)
+        g = _rotate(floored(g), theta)
         mean = float(np.sum(w * g) / open_f)
         ref_mean = _ref_mean(w, ref[gb.band_name])
         p10 = weighted_quantile(g, w, 0.10)

@@ -34,11 +34,18 @@ def check_arguments(args) -> None:
 
 
 def peak_gain_by_band(site) -> dict[str, tuple[float, str, str]]:
-    """The highest gain any option and state reaches per band: (dBi, option, state)."""
+    """The highest gain any transmit option and state reaches per band: (dBi, option, state).
+
+    Receive options (``use = "receive"``) radiate nothing and are left out;
+    with no transmit option the result is empty.
+    """
     out = {}
+    transmit = [o for o in site.array.options if not o.receive]
+    if not transmit:
+        return out
     for band in site.bands:
         best = (-math.inf, "", "")
-        for option in site.array.options:
+        for option in transmit:
             for state in option.states:
                 g = pattern_figures(array_pattern(site.array, option, state, band.freq_hz).gain_dbi)
                 best = max(best, (g["peak_gain_dbi"], option.name, state.name))
@@ -49,7 +56,7 @@ def peak_gain_by_band(site) -> dict[str, tuple[float, str, str]]:
 def build(site, args) -> dict:
     rows = []
     peaks = peak_gain_by_band(site)
-    for band in site.bands:
+    for band in site.bands if peaks else ():
         gain, option, state = peaks[band.name]
         e = exposure_distance(args.power_w, args.duty_cycle, gain, band.freq_mhz)
         rows.append({
@@ -61,8 +68,12 @@ def build(site, args) -> dict:
             "controlled_in_near_field": e.controlled_in_near_field,
             "uncontrolled_in_near_field": e.uncontrolled_in_near_field,
         })
+    notes = list(EXPOSURE_NOTES)
+    if not peaks:
+        notes.insert(0, "Every option of this site has use = \"receive\": nothing transmits, so there is no "
+                     "exposure to estimate. A transmit antenna elsewhere on the lot needs its own estimate.")
     return {"power_w": args.power_w, "duty_cycle": args.duty_cycle, "exposure": rows,
-            "notes": list(EXPOSURE_NOTES), "cautions": list(CAUTIONS)}
+            "notes": notes, "cautions": list(CAUTIONS)}
 
 
 def format_text(result: dict) -> str:

@@ -63,7 +63,7 @@ def _state_row(spec, option, state, band) -> dict:
         "line_loss_w": round(d.line_loss_w, 4),
         "match": None,
     }
-    if state.is_fed:
+    if state.is_fed and not option.receive:  # a receive option needs no transmitter match
         row["match"] = _match(spec, option, state.line_m, band)
     return row
 
@@ -87,7 +87,8 @@ def _design(spec, option, band) -> dict:
             if d is not None:
                 entry["line_m"] = [round(x, 3) for x in d.line_m]
                 entry["current_error"] = round(d.error, 5)
-                entry["match"] = _match(spec, option, d.line_m, band)
+                if not option.receive:
+                    entry["match"] = _match(spec, option, d.line_m, band)
         q = quarter_wave_forcing(spec.feed, band.freq_hz, w)
         entry["quarter_wave_forcing"] = {
             "quarter_wave_m": round(q.quarter_wave_m, 3),
@@ -108,6 +109,7 @@ def build(site, args=None) -> dict:
             out.append({
                 "band": band.name,
                 "option": option.name,
+                "use": option.use,
                 "freq_mhz": round(band.freq_hz / 1e6, 6),
                 "spacing_m": None if option.layout in ("single", "custom") else option.spacing_m,
                 "ground_loss_ohm": spec.ground_loss_ohm,
@@ -123,6 +125,9 @@ def _z(p) -> str:
 
 
 def _parts(m) -> str:
+    if m is None:
+        return "none (a receive option)"
+
     def one(c):
         return f"{c['uh']:.3f} uH" if c["part"] == "L" else f"{c['pf']:.0f} pF"
     swrs = ", ".join(f"{r['swr']:.2f} at {r['freq_mhz']:g}" for r in m["swr"])

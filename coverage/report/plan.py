@@ -60,12 +60,15 @@ def build_from_plan(site, plan) -> dict:
     ranking = [{"option": e.option, "orientation_deg": _r(e.orientation_deg, 1), "spacing_m": _r(e.spacing_m, 3),
                 "layout": e.layout, "score_db": _r(e.score_db, 2),
                 "goals": [_goal_row(g) for g in e.goals]} for e in plan.ranking]
+    uses = {op.option: op.use for op in plan.options}
+    for entry in ranking:  # issue 14: receive options are scored by directivity
+        entry["use"] = uses[entry["option"]]
     comparison = []
     for op in plan.options:
         entry = {"option": op.option, "spacing_m": _r(op.spacing_m, 3), "layout": op.layout,
                  "best_orientation_deg": _r(op.best_orientation_deg, 1), "score_db": _r(op.best_score_db, 2),
                  "within_1db_deg": [_r(op.window_deg[0], 1), _r(op.window_deg[1], 1)] if op.window_deg else None,
-                 "goals": []}
+                 "goals": [], "use": op.use}
         if op.best_orientation_deg is not None:
             idx = int(list(op.orientation_deg).index(op.best_orientation_deg))
             entry["goals"] = [_goal_row(g) for g in goal_rows(op, plan.goal_bands, idx, plan.reference_gain_dbi)]
@@ -132,6 +135,11 @@ def format_text(result: dict) -> str:
             label = g0["goal"] + (" (long)" if g0["path"] == "long" else "")
             out.append("  " + f"{label[:22]:<22} {g0['band'][:7]:<7}"
                        + "".join(f" {_f(g['advantage_db'], '+16.2f')}" for g in rows))
+    receive = [c["option"] for c in result["spacing_comparison"] if c.get("use") == "receive"]
+    if receive:
+        out += ["", "Scored by directivity, not gain (use = \"receive\"): " + ", ".join(receive) + ". For these "
+                "the mean and p10 columns are dB over the sky mean (the solid-angle mean gain over the upper "
+                "hemisphere, over this ground) and the advantage is over one vertical's directivity."]
     if result["caveats"]:
         out += ["", "Propagation model notes"]
         out += [f"  - {c}" for c in result["caveats"]]
