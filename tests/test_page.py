@@ -59,6 +59,7 @@ avoid = ["country:JPN"]
 [[goal]]
 name = "South America"
 region = "continent:South America"
+path = "both"
 [[goal]]
 name = "Reef"
 region = "circle:-17.8,178.0,80"
@@ -100,8 +101,8 @@ def fake_schedule(result: dict, states_of: dict) -> list[dict]:
     """Rows in the schedule's shape: state by hour and month, from the plan's own goal rows.
 
     As the schedule writes them: a row per option, band, month and hour; its
-    goals are those open in the slot (name, path, open share, advantage), so
-    the last hour, closed, lists none.
+    goals are those open in the slot (name, with " (long path)" for a long
+    path, open share, advantage), so the last hour, closed, lists none.
     """
     rows = []
     for comp in result["spacing_comparison"]:
@@ -117,7 +118,7 @@ def fake_schedule(result: dict, states_of: dict) -> list[dict]:
                         "month": month, "hour_utc": hour, "state": state,
                         "score_db": None if closed else round(1.0 + 0.05 * hour, 2),
                         "goals": [] if closed else [
-                            {"name": g["goal"], "path": g["path"], "open_share": round(0.1 + 0.08 * ((hour + i) % 10), 3),
+                            {"name": g["goal"] + (" (long path)" if g["path"] == "long" else ""), "open_share": round(0.1 + 0.08 * ((hour + i) % 10), 3),
                              "advantage_db": round((g["advantage_db"] or 0.0) - 0.4 * (hour % 5), 2)}
                             for i, g in enumerate(goals)],
                         "runner_up_state": None if closed else states[0], "runner_up_loss_db": None if closed else 0.5})
@@ -131,8 +132,8 @@ def fake_stakes(result: dict) -> list[dict]:
                            "lat_deg": 45.0, "lon_deg": -93.0},
                           {"element": 2, "along_m": 10.5, "across_m": 0.0, "north_m": 10.1, "east_m": 2.9,
                            "lat_deg": 45.000091, "lon_deg": -92.999963}],
-             "junction": {"along_m": 5.25, "across_m": 0.0, "north_m": 5.05, "east_m": 1.45}, "runs": [{"element": 1, "length_m": 6.0},
-                                                                      {"element": 2, "length_m": 13.0}]}]
+             "junction": {"along_m": 5.25, "across_m": 0.0, "north_m": 5.05, "east_m": 1.45}, "runs": [{"element": 1, "run_m": 5.4, "bearing_deg": 196.0, "line_m": {"fwd": 6.0, "rev": 13.0}},
+                      {"element": 2, "run_m": 5.4, "bearing_deg": 16.0, "line_m": {"fwd": 13.0, "rev": 6.0}}]}]
 
 
 @pytest.fixture(scope="module")
@@ -426,6 +427,13 @@ def test_three_figures_are_plan_json(browser, pages):
     open_share = next(g["open_share"] for g in row["goals"] if g["name"] == "Europe")
     shown = info.find_element("css selector", '[data-figure="open-share"]').text
     assert _number(shown) / 100.0 == pytest.approx(open_share, abs=1e-12)
+    # the long path, which the schedule names "... (long path)", gets its own figures
+    goal = browser.find_element("css selector", '#layer-goals [data-goal="South America"]')
+    browser.execute_script("arguments[0].focus()", goal)
+    long_dl = info.find_element("css selector", 'dl[data-path="long"]')
+    want = next(g["open_share"] for g in row["goals"] if g["name"] == "South America (long path)")
+    shown = long_dl.find_element("css selector", '[data-figure="open-share"]').text
+    assert _number(shown) / 100.0 == pytest.approx(want, abs=1e-12)
 
 
 @pytest.mark.parametrize("width,height", [(1280, 800), (380, 800)])

@@ -40,12 +40,27 @@
   var schedule = Array.isArray(PLAN.schedule) ? PLAN.schedule : [];
   var stakes = Array.isArray(PLAN.stakes) ? PLAN.stakes : [];
   var goalPaths = Array.isArray(PLAN.goal_paths) ? PLAN.goal_paths : [];
-  var months = uniq(schedule.map(function (r) { return r.month; })).filter(isNum).sort(function (a, b) { return a - b; });
+  var months = uniq((Array.isArray(PLAN.months) ? PLAN.months : []).concat(schedule.map(function (r) { return r.month; })))
+    .filter(isNum).sort(function (a, b) { return a - b; });
+  if (!schedule.length) { months = []; }
   var hours = uniq(schedule.map(function (r) { return r.hour_utc; })).filter(isNum).sort(function (a, b) { return a - b; });
   var rowIndex = {};
   var scheduled = {};
   schedule.forEach(function (r) { rowIndex[[r.option, r.band, r.month, r.hour_utc].join("\u0000")] = r; scheduled[r.option] = true; });
 
+  /* A goal of a schedule row: {name, path}. The schedule names a long path
+     "NAME (long path)" and may carry no path key. */
+  var goalNames = {};
+  DRAW.goals.forEach(function (g) { goalNames[g.name] = true; });
+  var LONG = " (long path)";
+  function slotGoal(g) {
+    if (g.path) { return { name: g.name, path: g.path }; }
+    var n = String(g.name);
+    if (!goalNames[n] && n.slice(-LONG.length) === LONG && goalNames[n.slice(0, -LONG.length)]) {
+      return { name: n.slice(0, -LONG.length), path: "long" };
+    }
+    return { name: n, path: "short" };
+  }
   function drawOption(name) {
     for (var i = 0; i < DRAW.options.length; i++) { if (DRAW.options[i].option === name) { return DRAW.options[i]; } }
     return DRAW.options[0];
@@ -103,9 +118,9 @@
       var live = ui.state === "best" ? row.state : ui.state;
       if (live) { out.lobes = [live]; }
       (row.goals || []).forEach(function (g) {
-        var rated = ui.state === "best" || ui.state === row.state;
-        var rec = out.goals[g.name] || (out.goals[g.name] = []);
-        rec.push({ path: g.path || null, state: row.state, advantage_db: g.advantage_db, open_share: g.open_share, rated: rated });
+        var rated = ui.state === "best" || ui.state === row.state, id = slotGoal(g);
+        var rec = out.goals[id.name] || (out.goals[id.name] = []);
+        rec.push({ path: id.path, state: row.state, advantage_db: g.advantage_db, open_share: g.open_share, rated: rated });
       });
       // goals of the band that the row leaves out are not open in this slot
       (comp ? comp.goals : []).forEach(function (g) {
@@ -506,7 +521,8 @@
         var txt = "";
         if (g.band === ui.band && sel.row) {
           (sel.row.goals || []).forEach(function (h) {
-            if (h.name === g.goal && (!h.path || h.path === g.path)) { txt = share(h.open_share) + " / " + db(h.advantage_db); }
+            var id = slotGoal(h);
+            if (id.name === g.goal && id.path === g.path) { txt = share(h.open_share) + " / " + db(h.advantage_db); }
           });
         }
         tr.appendChild(el("td", { "class": "num" }, txt || "\u2014"));
@@ -522,7 +538,8 @@
   /* ---------- staking plan ---------- */
   function cell(v) {
     if (v === null || v === undefined) { return "\u2014"; }
-    if (typeof v === "object") { return JSON.stringify(v); }
+    if (Array.isArray(v)) { return v.map(cell).join(", "); }
+    if (typeof v === "object") { return Object.keys(v).map(function (k) { return k + ": " + cell(v[k]); }).join("; "); }
     return String(v);
   }
   var UNITS = { m: "m", deg: "\u00b0", db: "dB", dbi: "dBi", ohm: "\u03a9", km: "km", mhz: "MHz" };
