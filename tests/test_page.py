@@ -132,7 +132,8 @@ def fake_stakes(result: dict) -> list[dict]:
                            "lat_deg": 45.0, "lon_deg": -93.0},
                           {"element": 2, "along_m": 10.5, "across_m": 0.0, "north_m": 10.1, "east_m": 2.9,
                            "lat_deg": 45.000091, "lon_deg": -92.999963}],
-             "junction": {"along_m": 5.25, "across_m": 0.0, "north_m": 5.05, "east_m": 1.45}, "runs": [{"element": 1, "run_m": 5.4, "bearing_deg": 196.0, "line_m": {"fwd": 6.0, "rev": 13.0}},
+             "junction": {"along_m": 5.25, "across_m": 0.0, "north_m": 5.05, "east_m": 1.45},
+             "runs": [{"element": 1, "run_m": 5.4, "bearing_deg": 196.0, "line_m": {"fwd": 6.0, "rev": 13.0}},
                       {"element": 2, "run_m": 5.4, "bearing_deg": 16.0, "line_m": {"fwd": 13.0, "rev": 6.0}}]}]
 
 
