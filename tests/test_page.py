@@ -118,7 +118,8 @@ def fake_schedule(result: dict, states_of: dict) -> list[dict]:
                         "month": month, "hour_utc": hour, "state": state,
                         "score_db": None if closed else round(1.0 + 0.05 * hour, 2),
                         "goals": [] if closed else [
-                            {"name": g["goal"] + (" (long path)" if g["path"] == "long" else ""), "open_share": round(0.1 + 0.08 * ((hour + i) % 10), 3),
+                            {"name": g["goal"] + (" (long path)" if g["path"] == "long" else ""),
+                             "open_share": round(0.1 + 0.08 * ((hour + i) % 10), 3),
                              "advantage_db": round((g["advantage_db"] or 0.0) - 0.4 * (hour % 5), 2)}
                             for i, g in enumerate(goals)],
                         "runner_up_state": None if closed else states[0], "runner_up_loss_db": None if closed else 0.5})

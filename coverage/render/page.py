@@ -242,7 +242,8 @@ def page_html(plan_json_text: str, drawing: dict) -> str:
         # no request may leave the file: a policy that allows only what is inline
         "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; "
         "style-src 'unsafe-inline'; script-src 'unsafe-inline'; img-src data:\">\n",
-        "<link rel=\"icon\" href=\"data:,\">\n<title>lobeplan plan</title>\n<style>\n", root, "\n", _asset("page.css"), "</style>\n</head>\n<body>\n",
+        "<link rel=\"icon\" href=\"data:,\">\n<title>lobeplan plan</title>\n",
+        "<style>\n", root, "\n", _asset("page.css"), "</style>\n</head>\n<body>\n",
         _asset("page-body.html"),
         "<script type=\"application/json\" id=\"plan-json\">", script_json(None, plan_json_text.rstrip("\n")),
         "</script>\n<script type=\"application/json\" id=\"page-drawing\">", script_json(drawing),
