@@ -6,19 +6,31 @@ with its ``--help`` line) that provides
 - ``add_arguments(parser)``: the verb's own options (optional);
 - ``build(site, args) -> dict``: the JSON-ready result (strict JSON);
 - ``format_text(result) -> str``: the table a person reads;
+- ``SITE_SECTIONS`` (optional): the site-file tables the verb needs, when
+  not all of [station], [array], [[band]] and [[goal]];
 - ``write_files(site, args, result, out_dir) -> list[Path]`` (optional):
   files for ``--out``, each written atomically; without it ``--out`` gets
   ``<verb>.json``.
+
+``out_dir`` is a staging folder beside ``--out``: the files move into place
+only when every one is written, and a failure, Ctrl-C or SIGTERM removes the
+staging folder, so a run leaves all its results or none. Each output folder
+keeps a small manifest (``.lobeplan-files.json``) of which verb wrote what,
+so that a rerun removes its own results it no longer writes and names those
+another verb left.
 """
 from __future__ import annotations
 
 import argparse
+import contextlib
 import importlib
+import signal
 import sys
+import threading
 from pathlib import Path
 from typing import Sequence
 
-from .errors import LobeplanError
+from .errors import LobeplanError, OutputError
 
 __all__ = ["main"]
 
@@ -29,6 +41,8 @@ VERBS = {
              "writes to ./maps"),
     "plan": ("lobeplan.report.plan", "rank baseline bearings and spacings against the goals; "
              "per-goal switch states, maps and results"),
+    "schedule": ("lobeplan.report.schedule", "which switch state to use on each band, month and UT hour; "
+                 "switch card and schedule figures"),
     "paths": ("lobeplan.report.paths", "bearings and distances (short and long path) to every goal region"),
     "needs": ("lobeplan.report.needs", "takeoff angles each band needs to reach each goal, and the hours "
               "it is open"),
@@ -77,9 +91,44 @@ def _build_parser(verb: str | None) -> tuple[argparse.ArgumentParser, object | N
     return parser, chosen
 
 
-def _run(args: argparse.Namespace, mod: object) -> int:
-    from .fileio import atomic_write_json, check_out_dir, dumps_json, ensure_dir
-    from .site import load
+class Terminated(BaseException):
+    """SIGTERM, raised where the run is so that its staged files are removed."""
+
+
+def _on_sigterm(signum, frame) -> None:
+    raise Terminated()
+
+
+@contextlib.contextmanager
+def _signals_held():
+    """Hold SIGINT and SIGTERM back while results move into place.
+
+    A signal that arrives meanwhile is noted and acted on when the block
+    ends, so a run stops either before its first file moves or after its
+    last. (Python-level handlers, not a thread signal mask: numerical
+    libraries run threads of their own that the kernel may deliver to.)
+    """
+    if threading.current_thread() is not threading.main_thread():
+        yield
+        return
+    received: list[int] = []
+    held = (signal.SIGINT, signal.SIGTERM)
+    old = {s: signal.signal(s, lambda signum, frame: received.append(signum)) for s in held}
+    try:
+        yield
+    finally:
+        for s, handler in old.items():
+            signal.signal(s, handler)
+    if signal.SIGTERM in received:
+        raise Terminated()
+    if received:
+        raise KeyboardInterrupt()
+
+
+def _run(args: argparse.Namespace, mod: object, state: dict) -> int:
+    from .fileio import (atomic_write_json, check_out_dir, commit_staging, discard_staging, dumps_json,
+                         is_output_fault, start_staging)
+    from .site import SECTIONS, load
 
     if hasattr(mod, "site_path"):
         site_path = mod.site_path(args)
@@ -92,44 +141,94 @@ def _run(args: argparse.Namespace, mod: object) -> int:
         out_dir = mod.default_out(args)
     if out_dir is not None:
         check_out_dir(out_dir)  # refuse before any work is done, create nothing yet
-    site = load(site_path)
+    site = load(site_path, getattr(mod, "SITE_SECTIONS", SECTIONS))
     result = mod.build(site, args)
     text = dumps_json(result) if args.json else mod.format_text(result)
-    written = []
+    done = None
     if out_dir is not None:
-        folder = ensure_dir(out_dir)
-        if hasattr(mod, "write_files"):
-            written = mod.write_files(site, args, result, folder)
-        else:  # every verb honours --out: at least its result as JSON
-            written = [atomic_write_json(folder / f"{args.verb}.json", result)]
+        state["out"] = out_dir
+        staging = start_staging(out_dir)
+        try:
+            if hasattr(mod, "write_files"):
+                staged = mod.write_files(site, args, result, staging.folder)
+            else:  # every verb honours --out: at least its result as JSON
+                staged = [atomic_write_json(staging.folder / f"{args.verb}.json", result)]
+            with _signals_held():
+                try:
+                    done = commit_staging(staging, list(staged), args.verb)
+                finally:
+                    state["moved"] = list(staging.moved)
+        except BaseException as exc:
+            discard_staging(staging)
+            if is_output_fault(exc) and not isinstance(exc, LobeplanError):
+                raise OutputError(f"--out: {out_dir}: cannot write ({exc.strerror or exc})") from None
+            if isinstance(exc, OutputError) and str(staging.folder) in str(exc):
+                # name the file where the user will look for it, not the staging folder
+                where = Path(out_dir)
+                raise OutputError(str(exc).replace(str(staging.folder), str(where).rstrip("/") or "/")) from None
+            raise
     sys.stdout.write(text if text.endswith("\n") else text + "\n")
-    if written and not args.json:
-        sys.stdout.write("".join(f"wrote {p}\n" for p in written))
+    if done is not None:
+        notes = []
+        if done.removed:
+            notes.append(f"removed from an earlier run (not written this time): {', '.join(done.removed)}\n")
+        for verb in dict.fromkeys(by for _, by in done.left):
+            names = ", ".join(name for name, by in done.left if by == verb)
+            notes.append(f"left from an earlier run (lobeplan {verb}): {names}\n")
+        if args.json:
+            sys.stderr.write("".join(f"lobeplan: {n}" for n in notes))
+        else:
+            sys.stdout.write("".join(f"wrote {p}\n" for p in done.written) + "".join(notes))
     return 0
+
+
+def _stopped(what: str, state: dict) -> str:
+    """The truthful end of a stopped run: what it left in --out."""
+    out, moved = state.get("out"), state.get("moved")
+    if moved:
+        return (f"lobeplan: {what} after the results were moved into {out}: "
+                + ", ".join(p.name for p in moved) + "\n")
+    if out is not None:
+        return f"lobeplan: {what}; nothing was written to {out}\n"
+    return f"lobeplan: {what}; no files were written\n"
 
 
 def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line; returns the exit status."""
     argv = list(sys.argv[1:] if argv is None else argv)
     debug = "--debug" in argv
+    state: dict = {}
+    old_term = None
+    if threading.current_thread() is threading.main_thread():
+        old_term = signal.signal(signal.SIGTERM, _on_sigterm)
     try:
         parser, module = _build_parser(_chosen_verb(argv))
         args = parser.parse_args(argv)
-        return _run(args, module)
+        return _run(args, module, state)
     except SystemExit as exc:  # argparse: --help or a usage error
         return int(exc.code or 0) if isinstance(exc.code, int) else 2
     except LobeplanError as exc:
-        sys.stderr.write(f"lobeplan: {exc}\n")
+        where = state.get("out")
+        tail = f"; nothing was written to {where}" if where is not None and not state.get("moved") else ""
+        sys.stderr.write(f"lobeplan: {exc}{tail}\n")
         return 2
     except KeyboardInterrupt:
-        sys.stderr.write("lobeplan: interrupted; no partial files were left\n")
+        sys.stderr.write(_stopped("interrupted", state))
         return 130
+    except Terminated:
+        sys.stderr.write(_stopped("terminated (SIGTERM)", state))
+        return 143
     except BrokenPipeError:
         return 1
     except Exception as exc:  # an internal error: still one line unless asked
         if debug:
             raise
         first = str(exc).splitlines()[0] if str(exc) else ""
-        sys.stderr.write(f"lobeplan: internal error: {type(exc).__name__}: {first} "
-                         "(rerun with --debug for the traceback)\n")
+        where = state.get("out")
+        tail = f"; nothing was written to {where}" if where is not None and not state.get("moved") else ""
+        sys.stderr.write(f"lobeplan: internal error: {type(exc).__name__}: {first}{tail} "
+                         "(rerun with --debug for the traceback; please report it)\n")
         return 1
+    finally:
+        if old_term is not None:
+            signal.signal(signal.SIGTERM, old_term)

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import difflib
 import math
+import re
 import tomllib
 from dataclasses import dataclass
 from pathlib import Path
@@ -21,7 +22,7 @@ from .geo.station import Station
 from .plan.model import Orientation
 from .propagation.model import PropagationSettings
 
-__all__ = ["Band", "Goal", "Site", "load", "loads", "MapSettings", "height_caveats"]
+__all__ = ["Band", "Goal", "Site", "load", "loads", "MapSettings", "height_caveats", "SECTIONS"]
 
 _REQUIRED = object()
 LAYOUTS = ("single", "pair", "line", "square", "custom")
@@ -29,6 +30,15 @@ PATHS = ("short", "long", "both")
 MODELS = ("geometry", "climatology")
 # PyIRI's magnetic-field coefficients run out after 2030 (issue 4, measured).
 YEAR_RANGE = (1958, 2030)
+# The exposure table covers 0.3-300 MHz (safety.py); above 60 MHz is not HF
+FREQ_RANGE_MHZ = (0.3, 60.0)
+# Work bounds: every loop over what a file lists has one (issue 16); a
+# 100,000-character station name took 37 s to draw
+MAX_SITE_BYTES = 1_000_000
+MAX_NAME_CHARS = 80
+MAX_TEXT_CHARS = 1000
+MAX_COUNTS = {"band": 20, "goal": 200, "state": 32, "option": 20, "avoid": 20, "positions_m": 16,
+              "hours_utc": 24, "allowed_orientation_deg": 36}
 
 
 @dataclass(frozen=True, slots=True)
@@ -121,7 +131,14 @@ class _Reader:
             value = [value]
         if not isinstance(value, list) or not all(isinstance(v, dict) for v in value):
             raise self.fail(key, f"expected an array of tables ([[{key}]]), got {_show(value)}")
+        self.at_most(value, key)
         return value
+
+    def at_most(self, value: list, key: str) -> None:
+        """Refuse more entries than the bound of this kind of list."""
+        limit = MAX_COUNTS.get(key.rsplit(".", 1)[-1].split("[")[0])
+        if limit is not None and len(value) > limit:
+            raise self.fail(key, f"has {len(value)} entries; expected at most {limit}")
 
     def number(self, t: dict, name: str, key: str, default: Any = _REQUIRED, *, lo: float | None = None,
                hi: float | None = None, lo_open: bool = False, hi_open: bool = False,
@@ -142,6 +159,8 @@ class _Reader:
             raise self.fail(k, f"{_show(v)} is not a number; expected {expect}")
         if integer and not (isinstance(v, int) or (isinstance(v, float) and v.is_integer())):
             raise self.fail(k, f"{_show(v)} is not a whole number; expected {expect}")
+        if isinstance(v, int) and abs(v) > 2**53:  # beyond exact floats (and float() overflows past 1e308)
+            raise self.fail(k, f"a {len(str(abs(v)))}-digit number is too large; expected {expect}")
         if not math.isfinite(v):
             raise self.fail(k, f"{_show(v)} is not a finite number; expected {expect}")
         if lo is not None and (v < lo or (lo_open and v == lo)):
@@ -160,6 +179,9 @@ class _Reader:
         v = t[name]
         if not isinstance(v, str) or (not v.strip()):
             raise self.fail(k, f"{_show(v)} is not a non-empty string")
+        limit = MAX_NAME_CHARS if name == "name" else MAX_TEXT_CHARS
+        if len(v) > limit:
+            raise self.fail(k, f"is {len(v)} characters long; expected at most {limit}")
         if choices is not None and v not in choices:
             close = difflib.get_close_matches(v, choices, n=1, cutoff=0.5)
             hint = f"; did you mean {close[0]!r}?" if close else ""
@@ -181,6 +203,10 @@ class _Reader:
         return tuple(self.check_number(x, f"{k}[{i + 1}]", **limits) for i, x in enumerate(v))
 
 
+def _and(items: list[str]) -> str:
+    return items[0] if len(items) == 1 else ", ".join(items[:-1]) + " and " + items[-1]
+
+
 def _join(key: str, name: str) -> str:
     return f"{key}.{name}" if key else name
 
@@ -196,6 +222,8 @@ def _show(v: Any) -> str:
         return "true" if v else "false"
     if isinstance(v, float) and not math.isfinite(v):
         return "nan" if math.isnan(v) else ("inf" if v > 0 else "-inf")
+    if isinstance(v, int) and abs(v) > 10**30:  # keep the message one readable line
+        return f"a {len(str(abs(v)))}-digit number"
     return repr(v)
 
 
@@ -213,12 +241,38 @@ def _range_text(lo, hi, lo_open, hi_open, integer) -> str:
 # --------------------------------------------------------------------------
 
 
-def load(path: str | Path) -> Site:
-    """Read and validate a site file."""
+def _check_regular_file(p: Path, file: str) -> None:
+    """Refuse a FIFO, socket or device before opening it (a FIFO blocks the read)."""
+    import stat
+
+    mode = p.stat().st_mode  # FileNotFoundError goes to the caller
+    if stat.S_ISDIR(mode) or stat.S_ISREG(mode):
+        return
+    kind = ("a named pipe (FIFO)" if stat.S_ISFIFO(mode) else "a device" if stat.S_ISCHR(mode) or stat.S_ISBLK(mode)
+            else "a socket" if stat.S_ISSOCK(mode) else "not a regular file")
+    raise SiteError(file, "", f"is {kind}; expected a TOML site file")
+
+
+SECTIONS = ("station", "array", "band", "goal")
+"""The tables a site file needs for every verb; a verb may need fewer."""
+
+
+def load(path: str | Path, sections: tuple[str, ...] = SECTIONS) -> Site:
+    """Read and validate a site file.
+
+    ``sections`` are the tables the caller needs; ``paths`` needs only
+    [station] and [[goal]], ``needs`` also [[band]]. A section given is
+    always checked, needed or not.
+    """
     p = Path(path)
     file = str(path)
     try:
-        raw = p.read_bytes()
+        _check_regular_file(p, file)
+        with p.open("rb") as fh:
+            raw = fh.read(MAX_SITE_BYTES + 1)
+        if len(raw) > MAX_SITE_BYTES:
+            raise SiteError(file, "", f"is larger than {MAX_SITE_BYTES // 1000} kB; a site file is a short "
+                            "TOML text (put large regions in a file: region)")
     except FileNotFoundError:
         raise SiteError(file, "", "no such file") from None
     except IsADirectoryError:
@@ -229,7 +283,7 @@ def load(path: str | Path) -> Site:
         text = raw.decode("utf-8")
     except UnicodeDecodeError:
         raise SiteError(file, "", "is not UTF-8 text; expected a TOML site file") from None
-    return loads(text, file=file, base_dir=str(p.resolve().parent))
+    return loads(text, file=file, base_dir=str(p.resolve().parent), sections=sections)
 
 
 _TOP = ("station", "array", "feed", "band", "goal", "propagation", "map")
@@ -243,12 +297,15 @@ _FEED = ("z0_ohm", "velocity_factor", "loss_db_per_100m_at_10mhz")
 _BAND = ("name", "freq_mhz", "edges_mhz")
 _GOAL = ("name", "region", "weight", "bands", "path", "clip", "avoid", "avoid_weight")
 _PROP = ("model", "month", "year", "solar_flux", "sunspot_number", "hours_utc", "min_elevation_deg",
-         "points_per_goal", "f2_height_km", "e_height_km", "seed", "absorption_limit_db", "fof2_maps", "extra_hop_loss_db")
+         "points_per_goal", "f2_height_km", "e_height_km", "seed", "absorption_limit_db", "fof2_maps", "extra_hop_loss_db",
+         "months", "closed_share")
 _MAP = ("lobe_peak_km", "lobe_floor_db", "ring_step_km")
 
 
-def loads(text: str, file: str = "<site>", base_dir: str = ".") -> Site:
+def loads(text: str, file: str = "<site>", base_dir: str = ".",
+          sections: tuple[str, ...] = SECTIONS) -> Site:
     """Validate a site file given as text (``file`` names it in messages)."""
+    text = text.removeprefix("\ufeff")  # a byte-order mark some editors write
     if "\x00" in text:
         raise SiteError(file, "", "holds binary data; expected a TOML site file")
     if not text.strip():
@@ -258,17 +315,31 @@ def loads(text: str, file: str = "<site>", base_dir: str = ".") -> Site:
         doc = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise SiteError(file, "", f"TOML syntax error: {exc}") from None
+    except RecursionError:
+        raise SiteError(file, "", "arrays or tables are nested too deeply to read; a site file nests "
+                        "at most a few levels") from None
+    except ValueError as exc:  # e.g. an integer of more than 4300 digits
+        raise SiteError(file, "", f"cannot be read: {str(exc).split(':')[0]}; expected numbers of "
+                        "ordinary size") from None
     r = _Reader(file)
     r.table(doc, "", _TOP)
-    for section in ("station", "array", "band", "goal"):
+    needed = [s for s in ("station", "array", "band", "goal") if s in sections]
+    for section in needed:
         if section not in doc:
-            raise r.fail(section, "missing; a site file needs [station], [array], [[band]] and [[goal]]")
+            raise r.fail(section, "missing; a site file needs " + _and(
+                [f"[[{s}]]" if s in ("band", "goal") else f"[{s}]" for s in needed]))
     station = _station(r, doc["station"])
-    array, orientation = _array(r, doc["array"], doc.get("feed", {}))
-    bands = _bands(r, doc["band"])
-    _check_receive_only(r, array, doc["band"])
+    if "array" in doc:
+        array, orientation = _array(r, doc["array"], doc.get("feed", {}))
+    else:  # only for verbs that do not use it (paths, needs)
+        array, orientation = None, Orientation(None, 1.0, ())
+    bands = _bands(r, doc["band"]) if "band" in doc else ()
+    _check_band_files(r, bands)
+    if array is not None and "band" in doc:
+        _check_receive_only(r, array, doc["band"])
     goals = _goals(r, doc["goal"], bands)
-    _check_height(r, array, bands)
+    if array is not None:
+        _check_height(r, array, bands)
     prop = _propagation(r, doc.get("propagation", {}))
     map_settings = _map(r, doc.get("map", {}))
     return Site(file, base_dir, station, array, orientation, bands, goals, prop, map_settings)
@@ -333,8 +404,8 @@ def _station(r: _Reader, t: Any) -> Station:
         try:
             lat, lon = _locator.locator_to_latlon(loc)
         except ValueError:
-            raise r.fail("station.locator", f"{loc!r} is not a Maidenhead locator; expected 2, 4, 6 or 8 "
-                         "characters such as 'IN93' or 'IN93nk'") from None
+            raise r.fail("station.locator", f"{loc!r} is not a Maidenhead locator; {_locator_problem(loc)}"
+                         ) from None
         return Station(name, lat, lon, loc[:4].upper() + loc[4:6].lower() + loc[6:])
     if not has_ll:
         raise r.fail("station", "no position; give locator = \"AB12cd\" or lat and lon in degrees")
@@ -342,6 +413,23 @@ def _station(r: _Reader, t: Any) -> Station:
                    what="a latitude in degrees between -90 and 90 (at a pole bearings are undefined)")
     lon = r.number(t, "lon", "station", lo=-180.0, hi=180.0, what="a longitude in degrees, -180 to 180")
     return Station(name, lat, lon, _locator.latlon_to_locator(lat, lon, 6))
+
+
+_LOCATOR_PAIRS = (("A", "R", "letters A to R"), ("0", "9", "digits 0 to 9"), ("A", "X", "letters A to X"),
+                  ("0", "9", "digits 0 to 9"))
+
+
+def _locator_problem(loc: str) -> str:
+    """What is wrong with a locator: its length, or the first bad character."""
+    text = loc.strip().upper()
+    if len(text) not in (2, 4, 6, 8):
+        return f"it has {len(text)} characters; expected 2, 4, 6 or 8 such as 'IN93' or 'IN93nk'"
+    for i, c in enumerate(text):
+        lo, hi, what = _LOCATOR_PAIRS[i // 2]
+        if not lo <= c <= hi:
+            return (f"character {i + 1} ({loc.strip()[i]!r}) must be one of the {what} "
+                    "(pairs: field A-R, square 0-9, subsquare A-X, extended 0-9)")
+    return "expected 2, 4, 6 or 8 characters such as 'IN93' or 'IN93nk'"
 
 
 def _ground(r: _Reader, v: Any) -> Ground:
@@ -357,6 +445,10 @@ def _ground(r: _Reader, v: Any) -> Ground:
     t = r.table(v, key, ("eps_r", "sigma_s_m"))
     eps = r.number(t, "eps_r", key, lo=1.0, hi=100.0, what="a relative permittivity from 1 to 100")
     sig = r.number(t, "sigma_s_m", key, lo=0.0, hi=10.0, what="a conductivity in S/m from 0 to 10")
+    if eps == 1.0 and sig == 0.0:
+        # the Fresnel coefficient is 0/0 at grazing incidence: no ground at all
+        raise r.fail(key, "{eps_r = 1, sigma_s_m = 0} is empty space, not a ground; expected eps_r above 1 "
+                     "or sigma_s_m above 0 (dry sand is about eps_r = 3, ITU-R P.527)")
     return Ground(f"eps_r {eps:g}, {sig:g} S/m", eps, sig)
 
 
@@ -391,6 +483,7 @@ def _layout_points(r: _Reader, t: dict, key: str, layout: str, spacing: float | 
         v = t["positions_m"]
         if not isinstance(v, list) or len(v) < 1:
             raise r.fail(k, f"{_show(v)} is not a list of [along, across] pairs")
+        r.at_most(v, k)
         pts = []
         for i, p in enumerate(v):
             if not isinstance(p, list) or len(p) != 2:
@@ -429,10 +522,21 @@ def _states(r: _Reader, v: Any, key: str, n: int, layout: str) -> tuple[State, .
                             lo=0.0, hi=100.0, what="a relative amplitude from 0 to 100")
         if not any(a > 0 for a in amp):
             raise r.fail(_join(k, "amplitude"), "all amplitudes are zero; at least one element must be driven")
+        weak = [i for i, a in enumerate(amp) if a < _MIN_AMPLITUDE_RATIO * max(amp)]
+        if weak:
+            raise r.fail(_join(k, f"amplitude[{weak[0] + 1}]"), f"{amp[weak[0]]:g} leaves element {weak[0] + 1} "
+                         "undriven: a forced base current of zero is an open base, which has no feed-point "
+                         f"impedance; expected every amplitude at least {_MIN_AMPLITUDE_RATIO:g} of the largest "
+                         "(leave the element out of the layout instead)")
         states.append(State(name, phase_deg=phase, amplitude=amp))
     if not states:
         raise r.fail(key, "no states; give at least one [[array.state]] switch position")
     return tuple(states)
+
+
+# 60 dB under the strongest element: weaker is no longer a driven element
+# but an open base, and its feed-point impedance V/I blows up
+_MIN_AMPLITUDE_RATIO = 1e-3
 
 
 def _spacings(r: _Reader, t: dict, key: str) -> tuple[float, ...]:
@@ -473,6 +577,9 @@ def _array(r: _Reader, t: Any, feed_t: Any) -> tuple[ArraySpec, Orientation]:
             if name in t:
                 raise r.fail(_join(key, name), "give it inside each [[array.option]] block, "
                              "not beside them")
+        if not r.tables(t["option"], "array.option"):
+            raise r.fail("array.option", "is an empty list; expected at least one [[array.option]] block "
+                         "with layout, spacing_m and states")
         for i, ot in enumerate(r.tables(t["option"], "array.option")):
             k = f"array.option[{i + 1}]"
             r.table(ot, k, _OPTION)
@@ -534,6 +641,7 @@ def _orientation(r: _Reader, t: dict) -> Orientation:
             raise r.fail(k, f"{_show(v)}: expected a list of [from, to] bearing ranges, e.g. [[20, 80]]")
         if all(not isinstance(x, list) for x in v) and len(v) == 2:
             v = [v]
+        r.at_most(v, k)
         for i, pair in enumerate(v):
             if not isinstance(pair, list) or len(pair) != 2:
                 raise r.fail(f"{k}[{i + 1}]", f"{_show(pair)} is not a [from, to] range of bearings")
@@ -542,6 +650,11 @@ def _orientation(r: _Reader, t: dict) -> Orientation:
             allowed.append((lo, hi))
     if fixed is not None and allowed and not any(_in_range(fixed, a, b) for a, b in allowed):
         raise r.fail("array.orientation_deg", f"{fixed:g} deg lies outside allowed_orientation_deg")
+    if fixed is None and allowed:
+        grid = [i * step for i in range(int(round(360.0 / step)))]
+        if not any(_in_range(t, a, b) for t in grid for a, b in allowed):
+            raise r.fail(k, f"{[list(a) for a in allowed]} holds none of the swept bearings (every {step:g} "
+                         "deg from 0); expected a range holding at least one, or a finer orientation_step_deg")
     return Orientation(fixed, step, tuple(allowed))
 
 
@@ -552,14 +665,22 @@ def _in_range(bearing: float, lo: float, hi: float) -> bool:
     return (bearing - lo) % 360.0 <= span
 
 
+# No transmission line used for phasing is this slow: solid-polyethylene coax
+# is 0.66 and the slowest common dielectrics about 0.5 (common practice,
+# from memory); 0.3 leaves room for slow-wave lines while refusing typos
+# such as 1e-6, which made every line thousands of wavelengths long.
+MIN_VELOCITY_FACTOR = 0.3
+
+
 def _feed(r: _Reader, t: Any) -> Feed:
     key = "feed"
     t = r.table(t, key, _FEED)
     return Feed(
         z0_ohm=r.number(t, "z0_ohm", key, default=50.0, lo=1.0, hi=1000.0,
                         what="a characteristic impedance in ohm, 1 to 1000"),
-        velocity_factor=r.number(t, "velocity_factor", key, default=0.66, lo=0.0, hi=1.0, lo_open=True,
-                                 what="a velocity factor more than 0 and at most 1"),
+        velocity_factor=r.number(t, "velocity_factor", key, default=0.66, lo=MIN_VELOCITY_FACTOR, hi=1.0,
+                                 what=f"a velocity factor from {MIN_VELOCITY_FACTOR:g} to 1 (solid-PE coax "
+                                 "0.66, foam 0.8, open-wire line 0.95)"),
         loss_db_per_100m_at_10mhz=r.number(t, "loss_db_per_100m_at_10mhz", key, default=1.7, lo=0.0,
                                            hi=100.0, what="a matched loss in dB per 100 m, 0 to 100"),
     )
@@ -570,11 +691,12 @@ def _bands(r: _Reader, v: Any) -> tuple[Band, ...]:
     for i, t in enumerate(r.tables(v, "band")):
         k = f"band[{i + 1}]"
         r.table(t, k, _BAND)
-        f = r.number(t, "freq_mhz", k, lo=0.1, hi=60.0, what="a frequency in MHz from 0.1 to 60")
+        f = r.number(t, "freq_mhz", k, lo=FREQ_RANGE_MHZ[0], hi=FREQ_RANGE_MHZ[1],
+                     what=f"a frequency in MHz from {FREQ_RANGE_MHZ[0]:g} to {FREQ_RANGE_MHZ[1]:g}")
         name = r.string(t, "name", k, default=f"{f:g} MHz")
         edges = None
         if "edges_mhz" in t:
-            lo, hi = r.number_list(t, "edges_mhz", k, length=2, lo=0.1, hi=60.0)
+            lo, hi = r.number_list(t, "edges_mhz", k, length=2, lo=FREQ_RANGE_MHZ[0], hi=FREQ_RANGE_MHZ[1])
             if not lo < f < hi:
                 raise r.fail(_join(k, "edges_mhz"), f"[{lo:g}, {hi:g}] must hold freq_mhz {f:g} "
                              "strictly inside; expected [low, high] in MHz")
@@ -592,11 +714,39 @@ def _region_check(r: _Reader, text: Any, key: str) -> str:
 
     if not isinstance(text, str):
         raise r.fail(key, f"{_show(text)} is not a region string such as \"continent:Europe\"")
+    if len(text) > MAX_TEXT_CHARS:
+        raise r.fail(key, f"is {len(text)} characters long; expected at most {MAX_TEXT_CHARS}")
     try:
         parse_region(text)
     except RegionError as exc:
         raise r.fail(key, str(exc)) from None
     return text
+
+
+def _same_region(a: str, b: str) -> bool:
+    """The same region string up to case and spaces (numbers compared as numbers)."""
+    def norm(text: str) -> tuple:
+        kind, _, arg = text.partition(":")
+        parts = [x.strip().lower() for x in arg.split(",")]
+        try:
+            return kind.strip().lower(), tuple(float(x) for x in parts)
+        except ValueError:
+            return kind.strip().lower(), tuple(re.sub(r"\s+", " ", x) for x in parts)
+
+    return norm(a) == norm(b)
+
+
+def _check_band_files(r: _Reader, bands: tuple[Band, ...]) -> None:
+    """Two bands whose names give the same file name would overwrite one map."""
+    from .render.scene import slug
+
+    seen: dict[str, int] = {}
+    for i, b in enumerate(bands):
+        s = slug(b.name).lower()  # case-insensitive filesystems fold case
+        if s in seen:
+            raise r.fail(f"band[{i + 1}].name", f"{b.name!r} and {bands[seen[s]].name!r} give the same file "
+                         f"name (map-{slug(b.name)}.png); expected band names that differ in a letter or digit")
+        seen[s] = i
 
 
 def _goals(r: _Reader, v: Any, bands: tuple[Band, ...]) -> tuple[Goal, ...]:
@@ -624,7 +774,8 @@ def _goals(r: _Reader, v: Any, bands: tuple[Band, ...]) -> tuple[Goal, ...]:
                     close = difflib.get_close_matches(b, band_names, n=1, cutoff=0.5)
                     hint = f" (did you mean {close[0]!r}?)" if close else ""
                     raise r.fail(f"{k}.bands[{j + 1}]", f"{b!r} is not a band of this site{hint}; "
-                                 f"the bands are {', '.join(repr(n) for n in band_names)}")
+                                 + (f"the bands are {', '.join(repr(n) for n in band_names)}" if band_names
+                                    else "the site file has no [[band]]"))
             goal_bands = tuple(dict.fromkeys(bv))
         path = r.string(t, "path", k, default="short", choices=PATHS)
         clip = None
@@ -644,7 +795,13 @@ def _goals(r: _Reader, v: Any, bands: tuple[Band, ...]) -> tuple[Goal, ...]:
                 av = [av]
             if not isinstance(av, list) or not av:
                 raise r.fail(_join(k, "avoid"), f"{_show(av)} is not a list of region strings")
+            r.at_most(av, _join(k, "avoid"))
             avoid = tuple(_region_check(r, a, f"{k}.avoid[{j + 1}]") for j, a in enumerate(av))
+            for j, a in enumerate(avoid):
+                if _same_region(a, region) and "clip" not in t:
+                    raise r.fail(f"{k}.avoid[{j + 1}]", f"{a!r} is the goal's own region; a region cannot be "
+                                 "served and avoided at once, so every bearing would score the same; expected "
+                                 "another region")
         avoid_weight = r.number(t, "avoid_weight", k, default=1.0, lo=0.0, hi=100.0,
                                 what="an avoid weight from 0 to 100")
         if any(g.name == name and g.path in (("short", "long") if path == "both" else (path,)) for g in out):
@@ -663,10 +820,11 @@ def _propagation(r: _Reader, t: Any) -> PropagationSettings:
     model = r.string(t, "model", key, default="geometry", choices=MODELS)
     if "solar_flux" in t and "sunspot_number" in t:
         raise r.fail(key, "give either solar_flux or sunspot_number, not both")
-    flux = r.number(t, "solar_flux", key, default=None, lo=50.0, hi=400.0,
-                    what="a 12-month mean F10.7 from 50 to 400 sfu")
-    ssn = r.number(t, "sunspot_number", key, default=None, lo=0.0, hi=400.0,
-                   what="a 12-month smoothed sunspot number from 0 to 400")
+    months = _months(r, t, key)
+    flux = _solar(r, t, "solar_flux", key, months, lo=50.0, hi=400.0,
+                  what="a 12-month mean F10.7 from 50 to 400 sfu")
+    ssn = _solar(r, t, "sunspot_number", key, months, lo=0.0, hi=400.0,
+                 what="a 12-month smoothed sunspot number from 0 to 400")
     if model == "climatology" and flux is None and ssn is None:
         raise r.fail(key, "the climatology model needs solar_flux (12-month mean F10.7) or sunspot_number")
     hours = ((0, 24),)
@@ -676,6 +834,7 @@ def _propagation(r: _Reader, t: Any) -> PropagationSettings:
             hv = [hv]
         if not isinstance(hv, list) or not hv:
             raise r.fail("propagation.hours_utc", f"{_show(hv)}: expected [[start, end], ...] in whole UT hours")
+        r.at_most(hv, "propagation.hours_utc")
         ranges = []
         for i, pair in enumerate(hv):
             kk = f"propagation.hours_utc[{i + 1}]"
@@ -710,7 +869,48 @@ def _propagation(r: _Reader, t: Any) -> PropagationSettings:
         fof2_maps=r.string(t, "fof2_maps", key, default="ccir", choices=("ccir", "ursi")),
         extra_hop_loss_db=r.number(t, "extra_hop_loss_db", key, default=3.0, lo=0.0, hi=20.0,
                                    what="a loss from 0 to 20 dB per ground reflection beyond the fewest"),
+        months=months,
+        closed_share=r.number(t, "closed_share", key, default=0.05, lo=0.0, hi=1.0, hi_open=True,
+                              what="a share from 0 to below 1 of a goal's point-hours under which it "
+                                   "counts as closed"),
     )
+
+
+def _months(r: _Reader, t: dict, key: str) -> tuple[int, ...]:
+    """``months``: a list of distinct months 1..12 or "all"; () when absent (``month`` is used)."""
+    if "months" not in t:
+        return ()
+    k = f"{key}.months"
+    if "month" in t:
+        raise r.fail(k, "give either month (one month) or months (a list), not both")
+    v = t["months"]
+    if v == "all":
+        return tuple(range(1, 13))
+    if not isinstance(v, list) or not v:
+        raise r.fail(k, f"{_show(v)}: expected a non-empty list of months from 1 to 12, or \"all\"")
+    out = tuple(r.check_number(m, f"{k}[{i + 1}]", lo=1, hi=12, integer=True, what="a month from 1 to 12")
+                for i, m in enumerate(v))
+    seen = set()
+    for i, m in enumerate(out):
+        if m in seen:
+            raise r.fail(f"{k}[{i + 1}]", f"month {m} is listed twice; expected each month once")
+        seen.add(m)
+    return out
+
+
+def _solar(r: _Reader, t: dict, name: str, key: str, months: tuple[int, ...], **limits):
+    """A solar input: one number, or a list with one value per listed month or twelve."""
+    if name not in t or not isinstance(t[name], list):
+        return r.number(t, name, key, default=None, **limits)
+    k = f"{key}.{name}"
+    v = t[name]
+    n = len(months) if months else 1
+    allowed = sorted({n, 12})
+    if len(v) not in allowed:
+        text = " or ".join(str(a) for a in allowed)
+        raise r.fail(k, f"has {len(v)} values; expected one number, or a list of {text} "
+                        f"(one per month of propagation.months{', or one per calendar month' if n != 12 else ''})")
+    return tuple(r.check_number(x, f"{k}[{i + 1}]", **limits) for i, x in enumerate(v))
 
 
 def _map(r: _Reader, t: Any) -> MapSettings:

@@ -5,7 +5,7 @@ import maidenhead
 import numpy as np
 import pytest
 import shapely
-from hypothesis import given, settings
+from hypothesis import example, given, settings
 from hypothesis import strategies as st
 from pyproj import Geod
 
@@ -306,6 +306,7 @@ def test_file_region(tmp_path):
 
 @settings(max_examples=25, deadline=None)
 @given(lat=st.floats(-89, 89), lon=st.floats(-179.9, 179.9), radius=st.floats(50, 9000))
+@example(lat=-47.0, lon=14.0, radius=50.0)  # lost a wedge of its outline (issue 16)
 def test_any_circle_resolves_and_samples(lat, lon, radius):
     # property: any circle on the globe gives a valid polygon and the asked
     # number of valid points, and its drawn polygon holds nearly all of them

@@ -248,7 +248,7 @@ def test_pattern_out_writes_json_figure_and_grids(write_site, tmp_path, capsys):
     printed = capsys.readouterr().out
     assert "front-to-back" in printed and "F/R" not in printed  # F/R dropped from the table
     data = json.loads((out / "pattern.json").read_text())
-    names = sorted(p.name for p in out.iterdir())
+    names = sorted(p.name for p in out.iterdir() if not p.name.startswith("."))  # not the run manifest
     assert names == ["pattern-40-m-pair-10-5-m-toward-1.csv", "pattern-40-m-pair-10-5-m-toward-2.csv",
                      "pattern-40-m-pair-10-5-m.png", "pattern.json"]
     row = next(p for p in data["patterns"] if p["state"] == "toward 2")

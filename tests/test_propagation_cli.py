@@ -69,7 +69,15 @@ def test_needs_json_shape(capsys, write_site):
         assert len(doc["needs"]) == 6
         for row in doc["needs"]:
             assert set(row) == {"band", "goal", "path", "open_fraction", "elevation_deg", "modes",
-                                "open_hours_utc"}
+                                "open_hours_utc", "by_month"}
+            # per month the open share of each of the 24 UT hours, None where not modelled
+            assert [m["month"] for m in row["by_month"]] == [12]
+            by_hour = row["by_month"][0]["open_share_by_hour"]
+            assert len(by_hour) == 24
+            modelled = set(range(0, 6)) | set(range(20, 24))
+            assert all((v is None) == (h not in modelled) for h, v in enumerate(by_hour))
+            shares = [v for v in by_hour if v is not None]
+            assert abs(sum(shares) / len(shares) - row["open_fraction"]) < 1e-3
             assert set(row["elevation_deg"]) == {"p10", "median", "p90"}
             assert 0.0 <= row["open_fraction"] <= 1.0
             assert set(row["open_hours_utc"]) <= set(range(0, 6)) | set(range(20, 24))

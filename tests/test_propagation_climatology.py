@@ -103,3 +103,19 @@ def test_absorption_sees_every_hop(prepared):
     np.testing.assert_allclose(z[:, 3, 2], geo.ionosphere.solar_zenith_deg[:, 3, 1], atol=1e-9)
     assert np.isfinite(z[:, 3, 1]).all() and np.abs(z[:, 3, 1] - z[:, 3, 0]).max() > 5
     assert np.isnan(z[:, 0, 1:]).all()  # the 1500 km path has one hop
+
+
+@pytest.mark.parametrize("month", [1, 7, 12])
+def test_coefficients_match_pyiris_own_reader(month):
+    # independent reference: PyIRI's read_ccir_ursi_coeff on the same files;
+    # the numbers are parsed from the same text, so they must agree exactly
+    import PyIRI
+    import PyIRI.main_library as ml
+
+    from lobeplan.propagation.climatology import _coefficients
+
+    ccir, ursi, m3000, _ = ml.read_ccir_ursi_coeff(month, PyIRI.coeff_dir)
+    fof2, m = _coefficients(month, "ccir")
+    np.testing.assert_array_equal(fof2, np.asarray(ccir, dtype=float))
+    np.testing.assert_array_equal(m, np.asarray(m3000, dtype=float))
+    np.testing.assert_array_equal(_coefficients(month, "ursi")[0], np.asarray(ursi, dtype=float))

@@ -3,9 +3,10 @@ import numpy as np
 import pytest
 
 from lobeplan.propagation.hops import EARTH_RADIUS_KM
-from lobeplan.propagation.muf import (F2_DECILE_FACTORS, absorption_db, absorption_index,
-                                      control_point_distances_km, control_points, m3000_muf,
-                                      open_probability, secant_law_muf)
+from lobeplan.propagation.muf import (ABSORPTION_NIGHT_FLOOR, F2_DECILE_FACTORS, absorption_db,
+                                      absorption_index, control_point_distances_km, control_points,
+                                      f2_decile_factors, open_probability, p1240_dmax_km, p1240_f2_muf,
+                                      secant_law_muf)
 
 
 @pytest.mark.parametrize("d_km, sec", [(1000, 1.86), (2000, 2.82), (3000, 3.28)])
@@ -14,16 +15,49 @@ def test_secant_law_muf(d_km, sec):
     assert secant_law_muf(7.0, d_km, 300.0) == pytest.approx(7.0 * sec, abs=7.0 * 0.005)
 
 
-def test_m3000_muf_meets_its_definition():
-    # published definition (URSI/ITU-R P.1239): M(3000)F2 = MUF(3000)F2/foF2,
-    # and at vertical incidence the MUF is foF2; exact by construction, 1e-9
-    fo = np.array([4.0, 9.0, 12.0])
-    m = np.array([2.4, 3.0, 3.4])
-    h = np.array([390.0, 300.0, 260.0])
-    assert m3000_muf(fo, m, 3000.0, h) == pytest.approx(fo * m, rel=1e-9)
-    assert m3000_muf(fo, m, 0.0, h) == pytest.approx(fo, rel=1e-9)
-    d = np.linspace(0, 3800, 50)
-    assert (np.diff(m3000_muf(9.0, 3.0, d, 300.0)) > 0).all()
+def test_p1240_basic_muf_worked_example():
+    # ITU-R P.1240 F2 basic MUF (constants from memory), worked by hand:
+    # foF2 8, foE 3, M(3000)F2 3.0, fH 1.2 MHz, d 2000 km:
+    #   x = 2.667, B = 3.0 - 0.124 + 5 (0.0215 + 0.005 sin(7.854/x - 1.9635)) = 3.0043
+    #   d_max = 4780 + (12610 + 301 - 6992 + 1960)(1/B - 0.303) = 5193 -> capped 4000 km
+    #   Z(2000) = 0 -> C = 0.74; Z(3000) = -0.5 -> C = 0.94209
+    #   MUF = (1 + 0.74/0.94209 x 2.0043) x 8 + 0.6 x (1 - 0.5) = 20.895 MHz
+    # the hand figures carry 5 digits, hence 1e-3 MHz
+    assert p1240_dmax_km(8.0, 3.0, 3.0) == pytest.approx(4000.0)
+    assert p1240_f2_muf(8.0, 3.0, 3.0, 2000.0, 1.2) == pytest.approx(20.895, abs=1e-3)
+
+
+def test_p1240_muf_limits_and_gyro_term():
+    # at vertical incidence the basic MUF is the extraordinary-wave critical
+    # frequency foF2 + fH/2 (Davies 1990, ch. 5: fx - fo = fH/2 for fo >> fH);
+    # at d_max the gyro term vanishes; exact by the formula's C(0) = 0, C(d_max) = 1
+    fo, foe, m, fh = np.array([4.0, 9.0]), np.array([0.7, 3.2]), np.array([2.8, 3.3]), np.array([1.4, 0.8])
+    assert p1240_f2_muf(fo, foe, m, 0.0, fh) == pytest.approx(fo + fh / 2, rel=1e-9)
+    dmax = p1240_dmax_km(fo, foe, m)
+    no_gyro = p1240_f2_muf(fo, foe, m, dmax, 0.0)
+    assert p1240_f2_muf(fo, foe, m, dmax, fh) == pytest.approx(no_gyro, rel=1e-9)
+    # the night case of the issue's complaint: at 500 km the fH/2 (1 - D/d_max)
+    # term is about a tenth of the MUF (foF2 4, foE 0.7, fH 1.2: 0.53 of 5.33 MHz)
+    with_fh = float(p1240_f2_muf(4.0, 0.7, 2.8, 500.0, 1.2))
+    without = float(p1240_f2_muf(4.0, 0.7, 2.8, 500.0, 0.0))
+    assert (with_fh - without) / with_fh == pytest.approx(0.0985, abs=2e-3)
+    # rising with hop length beyond the first few hundred km (the distance
+    # polynomial has a slight dip next to d = 0)
+    d = np.linspace(300, 4000, 60)
+    assert (np.diff(p1240_f2_muf(9.0, 3.0, 3.0, d, 1.2)) > 0).all()
+
+
+def test_decile_ratios_widen_by_night_and_toward_the_poles():
+    # ITU-R P.1240's table pattern (from memory): nights and high latitudes
+    # are more variable than middle-latitude days
+    lo_day, hi_day = f2_decile_factors(40.0, 30.0)
+    lo_night, hi_night = f2_decile_factors(120.0, 30.0)
+    lo_high, hi_high = f2_decile_factors(40.0, 70.0)
+    assert (lo_day, hi_day) == pytest.approx(F2_DECILE_FACTORS)
+    assert lo_night < lo_day and hi_night > hi_day
+    assert lo_high < lo_day and hi_high > hi_day
+    lo_all, hi_all = f2_decile_factors(np.linspace(0, 180, 50), 50.0)
+    assert (lo_all < 1).all() and (hi_all > 1).all()
 
 
 def test_open_probability_at_the_deciles():
@@ -75,10 +109,10 @@ def test_control_point_positions_follow_the_great_circle():
 
 
 def test_absorption_estimate_sense():
-    # George & Bradley form (constants from memory): no absorption once
-    # 0.881 chi passes 90 deg (night), more with a higher sun and more spots
-    assert absorption_index(110.0, 100.0) == 0.0
-    assert absorption_index(20.0, 100.0) > absorption_index(60.0, 100.0) > 0
+    # George & Bradley form (constants from memory): by night only P.533's
+    # floor of the diurnal factor remains; more with a higher sun and more spots
+    assert absorption_index(110.0, 100.0) == pytest.approx(1.37 * ABSORPTION_NIGHT_FLOOR)
+    assert absorption_index(20.0, 100.0) > absorption_index(60.0, 100.0) > absorption_index(110.0, 100.0)
     assert absorption_index(20.0, 150.0) > absorption_index(20.0, 0.0)
     # computed from the stated form: sun overhead, R12 = 0, 7 MHz,
     # one hop at 90 deg elevation: 677.2 / ((7 + 1.2)^1.98 + 10.2)
@@ -90,3 +124,16 @@ def test_absorption_estimate_sense():
     assert absorption_db(3.6, 20.0, 1, 1.0) > 2 * absorption_db(7.1, 20.0, 1, 1.0)
     assert absorption_db(7.1, 5.0, 1, 1.0) > absorption_db(7.1, 30.0, 1, 1.0)
     assert absorption_db(7.1, 5.0, 2, 1.0) == pytest.approx(2 * absorption_db(7.1, 5.0, 1, 1.0))
+
+
+@pytest.mark.parametrize("f_mhz, expect_db", [(10.1, 20.0), (14.1, 11.4)])
+def test_absorption_worked_example(f_mhz, expect_db):
+    # George & Bradley (1974) form, worked by hand (constants from memory):
+    # R12 65, solar zenith 40 deg, one hop at 10 deg takeoff, fH 1.2 MHz
+    #   I = (1 + 0.0037 x 65) cos(0.881 x 40)^1.3 = 1.2405 x 0.7686 = 0.9535
+    #   sec phi at 100 km: sin phi = 6371 cos 10 / 6471 = 0.96958 -> 4.085
+    #   10.1 MHz: 677.2 x 0.9535 x 4.085 / (11.3^1.98 + 10.2 = 131.8) = 20.0 dB
+    #   14.1 MHz: ... / (15.3^1.98 + 10.2 = 231.9) = 11.4 dB
+    # hand arithmetic to 3 digits: 2 % tolerance
+    got = float(absorption_db(f_mhz, 10.0, 1, absorption_index(40.0, 65.0), 1.2))
+    assert got == pytest.approx(expect_db, rel=0.02)

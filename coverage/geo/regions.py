@@ -55,6 +55,9 @@ CONTINENTS = ("Africa", "Antarctica", "Asia", "Europe", "North America", "Oceani
 _KINDS = ("country", "continent", "circle", "sector", "file")
 _FAR_FROM_HOME_KM = 2000.0
 _RUSSIA_SPLIT_LON_DEG = 60.0
+# smallest circle radius or sector depth: below 1 m the lon/lat outline
+# (vertices 1e-11 deg apart) can no longer be drawn
+_MIN_SIZE_KM = 0.001
 
 
 class RegionError(ValueError):
@@ -228,14 +231,20 @@ def parse_region(text: str) -> Region:
         lat, lon, radius = numbers
         if not -90.0 <= lat <= 90.0 or not -180.0 <= lon <= 180.0:
             raise RegionError(f"{text!r}: the centre is off the globe (latitude -90..90, longitude -180..180)")
-        if not 0.0 < radius < 20000.0:
-            raise RegionError(f"{text!r}: the radius must be more than 0 and less than 20000 km")
+        if not _MIN_SIZE_KM <= radius < 20000.0:
+            raise RegionError(f"{text!r}: the radius must be more than 0 (at least {_MIN_SIZE_KM:g} km) "
+                              "and less than 20000 km")
         return Region(kind, text, numbers=numbers)
     if len(numbers) != 4 or not all(np.isfinite(numbers)):
         raise RegionError(f"{text!r}: expected sector:FROM_DEG,TO_DEG,MIN_KM,MAX_KM (four numbers)")
-    _, _, dmin, dmax = numbers
+    a, b, dmin, dmax = numbers
     if not 0.0 <= dmin < dmax <= 20038.0:
         raise RegionError(f"{text!r}: distances must satisfy 0 <= MIN_KM < MAX_KM <= 20038")
+    if dmax - dmin < _MIN_SIZE_KM:
+        raise RegionError(f"{text!r}: MAX_KM - MIN_KM must be at least {_MIN_SIZE_KM:g} km")
+    if a == b:
+        raise RegionError(f"{text!r}: FROM_DEG and TO_DEG are both {a:g}, which names no span of bearings; "
+                          "give e.g. 80,100 for 20 deg, or 0,360 for every bearing")
     return Region(kind, text, numbers=numbers)
 
 
@@ -290,26 +299,46 @@ def _pole_longitudes(lons: np.ndarray, lats: np.ndarray) -> tuple[np.ndarray, np
     return np.asarray(out_lon), np.asarray(out_lat)
 
 
+def _drop_repeats(lons: np.ndarray, lats: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Remove consecutive repeats of a ring's points (a closed ring stays closed).
+
+    A cell that starts at the centre of a circle has all its inner-edge
+    points at the centre, equal up to rounding (1e-14 deg); such a ring
+    touches itself, and ``buffer(0)`` may then drop the whole cell, which
+    cut a wedge out of ``circle:-47,14,50``.
+    """
+    keep = np.ones(lons.size, dtype=bool)
+    step = np.hypot(np.diff(lons), np.diff(lats))
+    keep[1:] = step > 1e-11
+    return lons[keep], lats[keep]
+
+
 def _cell_polygon(lons: np.ndarray, lats: np.ndarray) -> list[Polygon]:
     """A small closed ring on the sphere (lon/lat in degrees) as lon/lat polygons.
 
     Longitudes are unwrapped along the ring; a ring that winds once around a
     pole is closed through that pole; the result is cut at +-180 deg.
     """
-    lons, lats = _pole_longitudes(np.asarray(lons, dtype=float), np.asarray(lats, dtype=float))
+    lons, lats = _drop_repeats(np.asarray(lons, dtype=float), np.asarray(lats, dtype=float))
+    if lons.size < 4:  # a closed ring needs three corners and the repeat of the first
+        return []
+    lons, lats = _pole_longitudes(lons, lats)
     lon_u = np.degrees(np.unwrap(np.radians(lons)))
     winding = lon_u[-1] - lon_u[0]  # the ring is closed: 0 or +-360 deg
     if abs(winding) > 180.0:  # encircles a pole: close the ring through it
         pole = 90.0 if np.mean(lats) > 0 else -90.0
-        ring = list(zip(lon_u, lats)) + [(lon_u[-1], pole), (lon_u[0], pole)]
+        ring = np.column_stack([np.append(lon_u, [lon_u[-1], lon_u[0]]), np.append(lats, [pole, pole])])
         # whole turns only: a shift by any other amount would rotate the shape
         start = min(lon_u[0], lon_u[-1])
         poly = shapely.affinity.translate(Polygon(ring).buffer(0), xoff=-360.0 * np.floor((start + 180.0) / 360.0))
     else:
-        poly = Polygon(list(zip(lon_u, lats))).buffer(0)
+        poly = Polygon(np.column_stack([lon_u, lats]))
+        if not poly.is_valid:
+            poly = poly.buffer(0)
     parts = []
     for p in _parts(poly):
-        parts.extend(_wrap_to_lon_range(p))
+        west, _, east, _ = p.bounds
+        parts.extend([p] if -180.0 <= west and east <= 180.0 else _wrap_to_lon_range(p))
     return parts
 
 
@@ -324,20 +353,28 @@ def _polar_region(lon0: float, lat0: float, az_from: float, az_to: float,
     if span == 0.0:
         span = 360.0
     n_az = max(4, int(np.ceil(span / 10.0)))
-    n_d = max(1, int(np.ceil((dmax_km - dmin_km) / 1000.0)))
+    n_d = max(1, int(np.ceil((dmax_km - dmin_km) / 2000.0)))
     az_edges = az_from + np.linspace(0.0, span, n_az + 1)
     d_edges = np.linspace(dmin_km, dmax_km, n_d + 1)
     k = 24  # points per cell edge, so cell edges follow the geodesics
+    t = np.linspace(0.0, 1.0, k)
+    # every cell's ring (inner arc, outer radial, outer arc back, inner radial
+    # back) in one geodesic call: the per-call overhead dominated large regions
+    i, j = np.meshgrid(np.arange(n_az), np.arange(n_d), indexing="ij")
+    a0, a1 = az_edges[i.ravel()][:, None], az_edges[i.ravel() + 1][:, None]
+    d0, d1 = d_edges[j.ravel()][:, None], d_edges[j.ravel() + 1][:, None]
+    a = a0 + (a1 - a0) * t
+    d = d0 + (d1 - d0) * t
+    ones = np.ones_like(t)
+    ring_az = np.hstack([a, a1 * ones, a[:, ::-1], a0 * ones])
+    ring_d = np.hstack([d0 * ones, d, d1 * ones, d[:, ::-1]])
+    lons, lats, _ = GEOD.fwd(np.full(ring_az.size, lon0), np.full(ring_az.size, lat0),
+                             ring_az.ravel(), ring_d.ravel() * 1000.0)
+    lons = np.asarray(lons).reshape(ring_az.shape)
+    lats = np.asarray(lats).reshape(ring_az.shape)
     cells = []
-    for i in range(n_az):
-        for j in range(n_d):
-            a = np.linspace(az_edges[i], az_edges[i + 1], k)
-            d = np.linspace(d_edges[j], d_edges[j + 1], k)
-            ring_az = np.concatenate([a, np.full(k, az_edges[i + 1]), a[::-1], np.full(k, az_edges[i])])
-            ring_d = np.concatenate([np.full(k, d_edges[j]), d, np.full(k, d_edges[j + 1]), d[::-1]])
-            lons, lats, _ = GEOD.fwd(np.full(ring_az.size, lon0), np.full(ring_az.size, lat0),
-                                     ring_az, ring_d * 1000.0)
-            cells.extend(_cell_polygon(np.asarray(lons), np.asarray(lats)))
+    for row in range(ring_az.shape[0]):
+        cells.extend(_cell_polygon(lons[row], lats[row]))
     merged = shapely.union_all([c for c in cells if c.is_valid and c.area > 0]).buffer(0)
     # where cells were cut at +-180 deg or closed through a pole, the union
     # can leave sliver holes along the seams; a real hole (an annulus) is
@@ -421,6 +458,17 @@ def _in_clip(clip, lons: np.ndarray, lats: np.ndarray) -> np.ndarray:
     return ok & ((lons >= west) & (lons <= east) if west <= east else (lons >= west) | (lons <= east))
 
 
+def _clip_misses(text: str, clip, whole: BaseGeometry) -> str:
+    """Why a clip box left nothing: how the box was read, and where the region lies."""
+    west, south, east, north = clip
+    w, s, e, n = whole.bounds
+    how = (f"read as west {west:g}, south {south:g}, east {east:g}, north {north:g}"
+           + (" -- west > east: the box crosses 180 deg" if west > east else ""))
+    return (f"{text!r} clipped to {[float(c) for c in clip]} ({how}): the region is empty, the box and the region "
+            f"(longitude {w:.4g} to {e:.4g}, latitude {s:.4g} to {n:.4g}) do not meet; expected "
+            "clip = [west, south, east, north] in degrees")
+
+
 def resolve(region: Region | str, station: Station, base_dir: str | os.PathLike[str] = ".",
             clip: tuple[float, float, float, float] | None = None) -> GoalArea:
     """Resolve a region string against the shipped data, the station and files.
@@ -448,10 +496,12 @@ def resolve(region: Region | str, station: Station, base_dir: str | os.PathLike[
         geom = _polar_region(disc.lon_deg, disc.lat_deg, disc.az_from_deg,
                              disc.az_from_deg + disc.span_deg, disc.min_km, disc.max_km)
     if clip is not None:
+        whole = geom
         geom = MultiPolygon(_parts(geom.intersection(_clip_geometry(clip))))
+        if (geom.is_empty or _area_m2(geom) <= 0.0) and not whole.is_empty:
+            raise RegionError(_clip_misses(reg.text, clip, whole))
     if geom.is_empty or _area_m2(geom) <= 0.0:
-        raise RegionError(f"{reg.text!r}" + (f" clipped to {list(clip)}" if clip else "")
-                          + ": the region is empty")
+        raise RegionError(f"{reg.text!r}: the region is empty")
     return GoalArea(reg.text, geom, disc, clip)
 
 
@@ -459,39 +509,99 @@ def resolve(region: Region | str, station: Station, base_dir: str | os.PathLike[
 # Sampling
 
 
-def _cap_candidates(disc: Disc, m: int, rng: np.random.Generator) -> tuple[np.ndarray, np.ndarray]:
-    """``m`` points uniform by area on the spherical cap that holds the disc."""
-    r_km = 6371.0
-    cap = min(np.pi, disc.max_km * 1.01 / r_km + 0.005)
-    z = rng.uniform(np.cos(cap), 1.0, m)          # uniform in cos(colatitude): equal area
-    theta = np.arccos(z)
-    az = rng.uniform(0.0, 360.0, m)
-    lons, lats, _ = GEOD.fwd(np.full(m, disc.lon_deg), np.full(m, disc.lat_deg), az, theta * r_km * 1000.0)
+RESOLUTION_KM2 = 1.0
+"""A region smaller than this (1 km x 1 km) is sampled as one point: one
+1-deg bearing cell is 1 km wide only 57 km from the station, and the hop
+geometry does not tell points 1 km apart."""
+
+# Work bounds of the rejection sampler: at most this many candidates in all,
+# in at most this many rounds (about 0.1 s for a polygon; a region that keeps
+# almost none of them is a sliver, answered with the points it kept or one).
+_MAX_CANDIDATES = 400_000
+_MAX_ROUNDS = 12
+_EARTH_KM = 6371.0
+
+
+def _disc_candidates(disc: Disc, m: int, rng: np.random.Generator) -> tuple[np.ndarray, np.ndarray]:
+    """``m`` points uniform by area on the sphere in the disc's bearing and
+    distance ranges (annular sector about its centre).
+
+    Distance d is drawn with cos(d / R) uniform, bearing uniform in the
+    sector: equal area on the sphere of radius R, so nearly every candidate
+    passes the exact test however small the region.
+    """
+    lo = min(np.pi, disc.min_km / _EARTH_KM)
+    hi = min(np.pi, disc.max_km / _EARTH_KM)
+    theta = np.arccos(rng.uniform(np.cos(hi), np.cos(lo), m))
+    az = disc.az_from_deg + rng.uniform(0.0, disc.span_deg, m)
+    lons, lats, _ = GEOD.fwd(np.full(m, disc.lon_deg), np.full(m, disc.lat_deg), az, theta * _EARTH_KM * 1000.0)
     return np.asarray(lons), np.asarray(lats)
 
 
+def _box_candidates(clip, m: int, rng: np.random.Generator) -> tuple[np.ndarray, np.ndarray]:
+    """``m`` points uniform by area on the sphere inside a clip box (may cross 180 deg)."""
+    west, south, east, north = clip
+    width = (east - west) % 360.0 or 360.0
+    lon = (west + rng.uniform(0.0, width, m) + 180.0) % 360.0 - 180.0
+    lat = np.degrees(np.arcsin(rng.uniform(np.sin(np.radians(south)), np.sin(np.radians(north)), m)))
+    return lon, lat
+
+
+def _box_area_km2(clip) -> float:
+    west, south, east, north = clip
+    width = np.radians((east - west) % 360.0 or 360.0)
+    return float(width * (np.sin(np.radians(north)) - np.sin(np.radians(south)))) * _EARTH_KM**2
+
+
+def _disc_area_km2(disc: Disc) -> float:
+    """Area on the sphere of radius R of the disc's annular sector."""
+    lo = min(np.pi, disc.min_km / _EARTH_KM)
+    hi = min(np.pi, disc.max_km / _EARTH_KM)
+    return float(np.radians(disc.span_deg) * (np.cos(lo) - np.cos(hi))) * _EARTH_KM**2
+
+
+def _disc_middle(disc: Disc) -> tuple[float, float]:
+    """The disc's one point: its centre, or a sector's middle bearing and distance."""
+    if disc.min_km == 0.0 and disc.span_deg == 360.0:
+        return disc.lon_deg, disc.lat_deg
+    lon, lat, _ = GEOD.fwd(disc.lon_deg, disc.lat_deg, disc.az_from_deg + disc.span_deg / 2.0,
+                           500.0 * (disc.min_km + disc.max_km))
+    return float(lon), float(lat)
+
+
 def sample_points(area: GoalArea | BaseGeometry, n: int, seed: int = 1) -> tuple[np.ndarray, np.ndarray]:
-    """``n`` points uniform by area on the sphere inside the region, deterministic.
+    """Up to ``n`` points uniform by area on the sphere inside the region, deterministic.
 
     Polygons: each part gets a share of the points by its area (largest
     remainder), then candidates uniform in longitude and in sin(latitude)
     over the part's bounding box -- uniform by area on the sphere -- are kept
     where ``shapely.contains_xy`` accepts them. Circles and sectors: points
-    uniform on the spherical cap that holds them, kept by the exact bearing
-    and distance test (and the clip box).
+    uniform in their bearing and distance ranges (or in the clip box, when
+    that is smaller), kept by the exact bearing and distance test and the
+    clip box.
+
+    The work is bounded: a region below ``RESOLUTION_KM2`` is one point, and
+    a sliver that keeps too few of ``_MAX_CANDIDATES`` candidates returns the
+    points it kept (or one point inside it), so fewer than ``n`` points mean
+    the region is too small or thin to sample finer.
 
     Returns
     -------
-    lons_deg, lats_deg : ndarray, shape (n,)
+    lons_deg, lats_deg : ndarray, shape (m,), 1 <= m <= n (empty if n <= 0)
     """
     rng = np.random.default_rng(seed)
+    if n <= 0:
+        return np.empty(0), np.empty(0)
     if isinstance(area, GoalArea) and area.disc is not None:
         return _sample_disc(area, n, rng)
     geom = area.geometry if isinstance(area, GoalArea) else area
     parts = _parts(geom)
-    if n <= 0 or not parts:
+    if not parts:
         return np.empty(0), np.empty(0)
     areas = np.array([_area_m2(p) for p in parts])
+    if areas.sum() < RESOLUTION_KM2 * 1e6:
+        rp = max(zip(areas, parts), key=lambda ap: ap[0])[1].representative_point()
+        return np.array([rp.x]), np.array([rp.y])
     share = areas / areas.sum() * n
     counts = np.floor(share).astype(int)
     for i in np.argsort(-(share - counts))[: n - counts.sum()]:
@@ -509,10 +619,11 @@ def sample_points(area: GoalArea | BaseGeometry, n: int, seed: int = 1) -> tuple
             lat = np.degrees(np.arcsin(rng.uniform(s_lo, s_hi, m)))
             return lon, lat, shapely.contains_xy(part, lon, lat)
 
-        lon, lat = _keep_until(draw, count)
+        # each part may use its share of the candidates, at least a few thousand
+        lon, lat = _keep_until(draw, count, max(4096, int(_MAX_CANDIDATES * count / n)))
         if lon.size == 0:  # a sliver: fall back on a point that lies inside it
             rp = part.representative_point()
-            lon, lat = np.full(count, rp.x), np.full(count, rp.y)
+            lon, lat = np.array([rp.x]), np.array([rp.y])
         lons_out.append(lon)
         lats_out.append(lat)
     return np.concatenate(lons_out), np.concatenate(lats_out)
@@ -520,41 +631,52 @@ def sample_points(area: GoalArea | BaseGeometry, n: int, seed: int = 1) -> tuple
 
 def _sample_disc(area: GoalArea, n: int, rng: np.random.Generator) -> tuple[np.ndarray, np.ndarray]:
     disc = area.disc
+    disc_km2 = _disc_area_km2(disc)
+    if area.clip is None and disc_km2 < RESOLUTION_KM2:
+        lon, lat = _disc_middle(disc)
+        return np.array([lon]), np.array([lat])
+    if area.clip is not None and min(disc_km2, _area_m2(area.geometry) / 1e6) < RESOLUTION_KM2:
+        rp = area.geometry.representative_point()
+        return np.array([rp.x]), np.array([rp.y])
+    # draw from the smaller of the two shapes, test against both
+    from_box = area.clip is not None and _box_area_km2(area.clip) < disc_km2
 
     def draw(m: int):
-        lon, lat = _cap_candidates(disc, m, rng)
+        lon, lat = _box_candidates(area.clip, m, rng) if from_box else _disc_candidates(disc, m, rng)
         ok = disc.contains(lon, lat)
         if area.clip is not None:
             ok &= _in_clip(area.clip, lon, lat)
         return lon, lat, ok
 
-    lon, lat = _keep_until(draw, n)
+    # geodesic tests cost ~1 us a point: a quarter of the polygon budget
+    lon, lat = _keep_until(draw, n, _MAX_CANDIDATES // 4)
     if lon.size == 0:
         rp = area.geometry.representative_point()
-        lon, lat = np.full(n, rp.x), np.full(n, rp.y)
+        lon, lat = np.array([rp.x]), np.array([rp.y])
     return lon, lat
 
 
-def _keep_until(draw, count: int, rounds: int = 200) -> tuple[np.ndarray, np.ndarray]:
-    """Draw candidate batches until ``count`` are kept (in draw order)."""
+def _keep_until(draw, count: int, budget: int) -> tuple[np.ndarray, np.ndarray]:
+    """Draw candidate batches until ``count`` are kept (in draw order).
+
+    At most ``budget`` candidates in at most ``_MAX_ROUNDS`` rounds; returns
+    the points kept so far if the budget runs out (possibly none).
+    """
     kept_lon, kept_lat = [], []
     got = 0
-    m = max(256, 4 * count)
-    for _ in range(rounds):
+    drawn = 0
+    m = min(budget, max(256, 4 * count))
+    for _ in range(_MAX_ROUNDS):
         lon, lat, ok = draw(m)
+        drawn += m
         kept_lon.append(lon[ok])
         kept_lat.append(lat[ok])
         got += int(ok.sum())
-        if got >= count:
+        if got >= count or drawn >= budget:
             break
-        rate = max(got / (m * (len(kept_lon))), 1e-4)
-        m = int(min(2_000_000, max(256, 1.2 * (count - got) / rate)))
-    lon = np.concatenate(kept_lon)[:count]
-    lat = np.concatenate(kept_lat)[:count]
-    if 0 < lon.size < count:  # very thin region: repeat the kept points
-        idx = np.resize(np.arange(lon.size), count)
-        lon, lat = lon[idx], lat[idx]
-    return lon, lat
+        rate = max(got / drawn, 1e-6)
+        m = int(min(budget - drawn, max(256, 1.2 * (count - got) / rate)))
+    return np.concatenate(kept_lon)[:count], np.concatenate(kept_lat)[:count]
 
 
 # --------------------------------------------------------------------------

@@ -33,12 +33,12 @@ from ..antenna.receive import directivity_dbi
 from ..geo.paths import goal_paths
 from ..geo.regions import region_points
 from ..grid import N_AZIMUTH
-from ..propagation.needs import Needs, band_needs, prepare_goal
+from ..propagation.needs import Needs, band_needs, prepare_goal_months
 from .sweep import correlate, floored, orientations, spectrum, weighted_quantile
 
 __all__ = ["avoid_credit_cap_db", "GoalBand", "OptionPlan", "Plan", "RankEntry", "GoalRow", "make_plan", "needs_for_site",
            "in_allowed", "distinct_maxima", "score_option", "prepare_needs", "symmetry_order", "goal_rows",
-           "receive_reference", "as_directivity"]
+           "receive_reference", "as_directivity", "windows_within"]
 
 DISTINCT_DEG = 10.0  # ranking: maxima at least this far apart
 WINDOW_DB = 1.0      # orientation sensitivity: bearings within this of the best
@@ -152,19 +152,28 @@ def needs_for_site(site, progress: Callable[[int, int], None] | None = None
     wanted = {(g.region, g.clip, g.path) for g in site.goals}
     wanted |= {(a, None, g.path) for g in site.goals for a in g.avoid}
     n_total = len(wanted)
+    # a region's prepared months are big (every month's ionosphere at every
+    # point and hour): drop them after the last goal that uses them
+    last_use = {}
+    for gi, g in enumerate(site.goals):
+        for k in [(g.region, g.clip, g.path)] + [(a, None, g.path) for a in g.avoid]:
+            last_use[k] = gi
+    built = [0]
 
     def geometry(text: str, clip, key: str, path: str):
         k = (text, clip, path)
         if k not in geometries:
             lons, lats = region_points(site, text, clip, key)
             bearing, dist = goal_paths(site.station, lons, lats, path)
-            base = len(geometries)
+            base = built[0]
+            built[0] += 1
 
             def inner(done: int, total: int, base=base) -> None:
                 progress(base + (done / total if total else 1.0), n_total)
 
-            geometries[k] = prepare_goal(prop, site.station.lon_deg, site.station.lat_deg, lons, lats,
-                                         bearing, dist, path, progress=inner if progress is not None else None)
+            geometries[k] = prepare_goal_months(prop, site.station.lon_deg, site.station.lat_deg, lons, lats,
+                                                bearing, dist, path,
+                                                progress=inner if progress is not None else None)
         return geometries[k]
 
     out = []
@@ -183,6 +192,8 @@ def needs_for_site(site, progress: Callable[[int, int], None] | None = None
                 avoid = _pool(parts)
             out.append(GoalBand(gi, goal.name, goal.path, band.name, band.freq_hz, goal.weight, needs,
                                 avoid, goal.avoid_weight))
+        for k in [k for k, last in last_use.items() if last == gi]:
+            geometries.pop(k, None)
     return tuple(out), tuple(caveats)
 
 
@@ -193,7 +204,15 @@ def _pool(parts: list[Needs]) -> Needs:
     from dataclasses import replace
 
     w = sum(p.weights for p in parts) / len(parts)
-    return replace(parts[0], weights=w, open_fraction=float(w.sum()))
+    # the sparse per-slot entries pool the same way: all entries, each weight
+    # divided by the number of regions
+    sparse = {}
+    if all(p.slot is not None for p in parts):
+        sparse = dict(slot=np.concatenate([p.slot for p in parts]),
+                      cell=np.concatenate([p.cell for p in parts]),
+                      slot_weight=np.concatenate([p.slot_weight for p in parts]) / len(parts),
+                      open_share_by_slot=sum(p.open_share_by_slot for p in parts) / len(parts))
+    return replace(parts[0], weights=w, open_fraction=float(w.sum()), **sparse)
 
 
 def _ref_mean(weights: np.ndarray, ref_gain_dbi: np.ndarray) -> float:
@@ -365,6 +384,44 @@ def _best(thetas, score, allowed):
     while good[(hi + 1) % n] and (hi + 1) % n != lo:
         hi = (hi + 1) % n
     return float(thetas[i]), best, (float(thetas[lo]), float(thetas[hi]))
+
+
+def windows_within(thetas: np.ndarray, score: np.ndarray, allowed: np.ndarray,
+                   db: float = WINDOW_DB) -> tuple[list[tuple[float, float]], bool]:
+    """Every run of allowed bearings within ``db`` of the best score.
+
+    Returns ``(runs, every)``: runs as (first, last) bearing, clockwise, the
+    run holding the best first and then clockwise from it; ``every`` is True
+    when every allowed bearing is within ``db`` (a flat score, or one fixed
+    bearing). A symmetric layout gives one run per copy of its best bearing;
+    each is listed.
+    """
+    ok = allowed & np.isfinite(score)
+    if not ok.any():
+        return [], False
+    best_i = int(np.argmax(np.where(ok, score, -np.inf)))
+    good = ok & (score >= score[best_i] - db)
+    n = thetas.size
+    every = bool((good == ok).all())
+    if good.all():
+        return [(float(thetas[0]), float(thetas[-1]))], True
+    start = int(np.flatnonzero(~good)[0])  # walk the circle from a bearing outside every run
+    runs: list[tuple[int, int]] = []
+    k = 0
+    while k < n:
+        i = (start + k) % n
+        if not good[i]:
+            k += 1
+            continue
+        first = i
+        while k + 1 < n and good[(start + k + 1) % n]:
+            k += 1
+        runs.append((first, (start + k) % n))
+        k += 1
+    # the run holding the best bearing first, then clockwise
+    lead = next(j for j, (a, b) in enumerate(runs) if (best_i - a) % n <= (b - a) % n)
+    runs = runs[lead:] + runs[:lead]
+    return [(float(thetas[a]), float(thetas[b])) for a, b in runs], every
 
 
 def symmetry_order(positions_m) -> int:

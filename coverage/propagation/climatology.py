@@ -6,11 +6,13 @@ vectorised evaluation. It is imported only here and only when called:
 ``import PyIRI`` pulls in matplotlib.pyplot.
 
 We call PyIRI's own building blocks in the order its
-``IRI_monthly_mean_par`` does, but keep only foF2, M(3000)F2, hmF2, foE and
-the solar zenith angle, and we hand the matrix products float64
-coefficients: PyIRI 0.1.7 reads the foF2 and M(3000)F2 coefficient tables as
-``dtype=object`` arrays, which makes its matrix products about 400 times
-slower than needed. The tests compare the result with a direct
+``IRI_monthly_mean_par`` does, but keep only foF2, M(3000)F2, hmF2, foE, the
+solar zenith angle and the IGRF field. Two pieces are our own: the foF2 and
+M(3000)F2 coefficient files are read with one pattern match (PyIRI 0.1.7
+parses them record by record into ``dtype=object`` arrays, 0.15 s a month
+and matrix products 400 times slower than needed), and the products
+themselves go through einsum rather than the BLAS thread pool. The tests
+compare the coefficients with PyIRI's reader and the result with a direct
 ``IRI_monthly_mean_par`` call.
 
 References
@@ -27,6 +29,7 @@ maps).
 from __future__ import annotations
 
 from dataclasses import dataclass
+import re
 from functools import lru_cache
 
 import numpy as np
@@ -38,6 +41,7 @@ __all__ = [
     "Ionosphere",
     "solar_input",
     "ionosphere",
+    "ionosphere_months",
     "solar_zenith_deg",
 ]
 
@@ -85,6 +89,11 @@ class Ionosphere:
     fof2_mhz, hmf2_km, m3000f2, foe_mhz, solar_zenith_deg : ndarray
         F2 critical frequency (MHz), F2 peak height (km), M(3000)F2 factor,
         E critical frequency (MHz), solar zenith angle (deg) on day 15.
+    gyrofrequency_mhz : ndarray
+        Electron gyrofrequency at 300 km from the IGRF total field,
+        fH = e B / (2 pi m_e) (MHz).
+    dip_latitude_deg : ndarray
+        Magnetic dip latitude, atan(tan(I) / 2) (deg).
     """
 
     hours_utc: np.ndarray
@@ -93,6 +102,12 @@ class Ionosphere:
     m3000f2: np.ndarray
     foe_mhz: np.ndarray
     solar_zenith_deg: np.ndarray
+    gyrofrequency_mhz: np.ndarray
+    dip_latitude_deg: np.ndarray
+
+
+# e / (2 pi m_e) in MHz per nT (CODATA e and m_e: 27.992 GHz/T)
+_GYRO_MHZ_PER_NT = 27.992e-6
 
 
 def _r12_to_f107(r12: float) -> float:
@@ -135,14 +150,52 @@ def solar_input(solar_flux_sfu: float | None = None, sunspot_number: float | Non
     return SolarInput(requested, used, float(_f107_to_r12(used)), bool(used != requested))
 
 
+_NUMBER = re.compile(r"[-+]?\d*\.\d+[EeDd][-+]?\d+")
+
+
+def _read_numbers(path) -> np.ndarray:
+    """Every number of a coefficient file in (1X, 4E15.8) records, in order.
+
+    The fields touch when a value is negative, so they are found by their
+    pattern rather than split on spaces; PyIRI's own reader parses them one
+    record at a time (about 0.15 s a month) and returns object arrays.
+    """
+    with open(path, encoding="ascii") as f:
+        return np.array(_NUMBER.findall(f.read()), dtype=float)
+
+
 @lru_cache(maxsize=12)
 def _coefficients(month: int, fof2_maps: str):
+    """The month's foF2 (CCIR or URSI) and M(3000)F2 coefficients, float64, PyIRI's layout."""
+    import os
+
     import PyIRI
     import PyIRI.main_library as ml
 
-    ccir, ursi, m3000, es = ml.read_ccir_ursi_coeff(month, PyIRI.coeff_dir)
-    fof2 = ccir if fof2_maps == "ccir" else ursi
-    return (np.asarray(fof2, dtype=float), np.asarray(m3000, dtype=float), np.asarray(es, dtype=float))
+    sizes = ml.highest_power_of_extension()
+    shape_f = (sizes["nj"]["F0F2"], sizes["nk"]["F0F2"], 2)
+    shape_m = (sizes["nj"]["M3000"], sizes["nk"]["M3000"], 2)
+    name = f"{month + 10}.asc"   # the files are numbered 11..22
+    ccir = _read_numbers(os.path.join(PyIRI.coeff_dir, "CCIR", "ccir" + name))
+    n_f = int(np.prod(shape_f))
+    m3000 = np.reshape(ccir[n_f:n_f + int(np.prod(shape_m))], shape_m, order="F")
+    if fof2_maps == "ursi":
+        fof2_src = _read_numbers(os.path.join(PyIRI.coeff_dir, "URSI", "ursi" + name))
+    else:
+        fof2_src = ccir
+    fof2 = np.reshape(fof2_src[:n_f], shape_f, order="F")
+    return fof2, m3000
+
+
+def _maps(diurnal: np.ndarray, coeff: np.ndarray, geographic: np.ndarray) -> np.ndarray:
+    """PyIRI's ``gamma`` for one quantity: D @ C[:, :, level] @ G for both solar levels.
+
+    The products are small (24 x 13 x 76 x n points); einsum keeps them
+    off the BLAS thread pool, which on a busy two-core machine made PyIRI's
+    own matmul ten times slower than a plain loop.
+    """
+    first = np.einsum("tj,jkl->tkl", diurnal, coeff)
+    return np.einsum("tkl,kn->tnl", first, geographic)
 
 
 def ionosphere(year: int, month: int, hours_utc, lons_deg, lats_deg, solar_flux_sfu: float,
@@ -170,6 +223,33 @@ def ionosphere(year: int, month: int, hours_utc, lons_deg, lats_deg, solar_flux_
     ----------
     Forsythe et al. (2023); Bilitza et al. (2022); ITU-R P.1239.
     """
+    return ionosphere_months(year, (month,), hours_utc, lons_deg, lats_deg, (solar_flux_sfu,), fof2_maps)[0]
+
+
+def ionosphere_months(year: int, months, hours_utc, lons_deg, lats_deg, solar_flux_sfu,
+                      fof2_maps: str = "ccir") -> tuple[Ionosphere, ...]:
+    """:func:`ionosphere` for several months of one year, each with its own solar input.
+
+    The month-independent parts (the magnetic field, modified dip latitude
+    and the maps' geographic and diurnal basis functions) are evaluated
+    once, for the first month's date: the field's secular change over a
+    year moves the dip by well under a tenth of a degree (common practice).
+
+    Parameters
+    ----------
+    year : int
+    months : sequence of int
+    hours_utc, lons_deg, lats_deg : array_like
+        As in :func:`ionosphere`.
+    solar_flux_sfu : sequence of float
+        One F10.7 per month.
+    fof2_maps : {"ccir", "ursi"}
+
+    Returns
+    -------
+    tuple of Ionosphere
+        One per month, in order.
+    """
     import datetime as dt
 
     import PyIRI
@@ -178,31 +258,40 @@ def ionosphere(year: int, month: int, hours_utc, lons_deg, lats_deg, solar_flux_
 
     if fof2_maps not in ("ccir", "ursi"):
         raise ValueError(f"fof2_maps: expected 'ccir' or 'ursi', not {fof2_maps!r}")
+    months = tuple(int(m) for m in months)
     aut = np.atleast_1d(np.asarray(hours_utc, dtype=float))
     alon = np.atleast_1d(np.asarray(lons_deg, dtype=float))
     alat = np.atleast_1d(np.asarray(lats_deg, dtype=float))
     aig = np.array([0.0, 100.0])  # PyIRI's two map levels, IG12 0 and 100
 
-    inc = igrf.inclination(PyIRI.coeff_dir, ml.decimal_year(dt.datetime(year, month, 15)),
-                           alon, alat, 300.0, only_inc=True)
+    inc, *_, total_nt = igrf.inclination(PyIRI.coeff_dir, ml.decimal_year(dt.datetime(year, months[0], 15)),
+                                         alon, alat, 300.0, only_inc=False)
     modip = igrf.inc2modip(inc, alat)
-    d_fof2, d_m3000, d_es = ml.diurnal_functions(aut)
-    g_fof2, g_m3000, g_es = ml.set_gl_G(alon, alat, modip)
-    c_fof2, c_m3000, c_es = _coefficients(int(month), fof2_maps)
-    fof2, m3000, _ = ml.gamma(d_fof2, d_m3000, d_es, g_fof2, g_m3000, g_es, c_fof2, c_m3000, c_es)
-    foe, solzen, _, _, _ = ml.gammaE(year, month, aut, alon, alat, aig)
-    hmf2, _, _ = ml.hm_IRI(m3000, foe, fof2, modip, aig)
-
-    f2 = ml.solar_interpolation_of_dictionary({"fo": fof2, "M3000": m3000, "hm": hmf2}, solar_flux_sfu)
-    e = ml.solar_interpolation_of_dictionary({"fo": foe, "solzen": solzen}, solar_flux_sfu)
-    return Ionosphere(
-        hours_utc=aut,
-        fof2_mhz=np.clip(f2["fo"], 0.0, None),
-        hmf2_km=f2["hm"],
-        m3000f2=f2["M3000"],
-        foe_mhz=np.clip(e["fo"], 0.0, None),
-        solar_zenith_deg=e["solzen"],
-    )
+    d_fof2, d_m3000, _ = ml.diurnal_functions(aut)
+    g_fof2, g_m3000, _ = ml.set_gl_G(alon, alat, modip)
+    shape = (aut.size, alon.size)
+    gyro = np.broadcast_to(_GYRO_MHZ_PER_NT * np.asarray(total_nt, dtype=float), shape)
+    dip = np.broadcast_to(np.degrees(np.arctan(0.5 * np.tan(np.radians(inc)))), shape)
+    out = []
+    for month, flux in zip(months, solar_flux_sfu):
+        c_fof2, c_m3000 = _coefficients(month, fof2_maps)
+        fof2 = _maps(d_fof2, c_fof2, g_fof2)
+        m3000 = _maps(d_m3000, c_m3000, g_m3000)
+        foe, solzen, _, _, _ = ml.gammaE(year, month, aut, alon, alat, aig)
+        hmf2, _, _ = ml.hm_IRI(m3000, foe, fof2, modip, aig)
+        f2 = ml.solar_interpolation_of_dictionary({"fo": fof2, "M3000": m3000, "hm": hmf2}, float(flux))
+        e = ml.solar_interpolation_of_dictionary({"fo": foe, "solzen": solzen}, float(flux))
+        out.append(Ionosphere(
+            hours_utc=aut,
+            fof2_mhz=np.clip(f2["fo"], 0.0, None),
+            hmf2_km=f2["hm"],
+            m3000f2=f2["M3000"],
+            foe_mhz=np.clip(e["fo"], 0.0, None),
+            solar_zenith_deg=e["solzen"],
+            gyrofrequency_mhz=gyro,
+            dip_latitude_deg=dip,
+        ))
+    return tuple(out)
 
 
 def solar_zenith_deg(year: int, month: int, hours_utc, lons_deg, lats_deg) -> np.ndarray:

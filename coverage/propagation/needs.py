@@ -15,34 +15,40 @@ geometry (the default)
     minimum elevation carries all the weight; every hour is open. No
     ionosphere is consulted.
 climatology
-    Monthly-median foF2, hmF2 and foE (PyIRI) at the ITU-R P.533 control
-    points. For each path and hour the candidate modes are F2 with the
-    fewest hops meeting the minimum elevation and two orders more, and on
-    paths up to 4000 km E with the fewest hops and one more. A mode's
-    probability is:
+    Monthly-median foF2, hmF2, M(3000)F2 and foE (PyIRI) and the IGRF
+    gyrofrequency at the ITU-R P.533 control points, month by month, each
+    month with its own solar input. For each path and hour the candidate
+    modes are F2 from the lowest order (ceil(D / d_max), P.1240's reference
+    hop, raised until the takeoff angle meets the minimum elevation) and
+    two orders more, and E on every path with the fewest hops meeting the
+    minimum elevation and one more. A mode's probability is:
 
     - F2: P(day's MUF > f), the MUF being the lowest over the control
-      points of the M(3000)F2-anchored MUF (:func:`.muf.m3000_muf`: foF2 at
-      vertical incidence, foF2 M(3000)F2 at 3000 km, the curved-Earth
-      secant law with reflection at hmF2 for the shape in between), times P(the E layer does not screen it), the E-layer MUF for the F2
-      ray's own angle being foE sec i at the E height (highest over the
-      control points);
+      points of P.1240's basic MUF (:func:`.muf.p1240_f2_muf`, with the
+      fH/2 (1 - d/d_max) term), the day-to-day spread by day or night and
+      magnetic latitude (:func:`.muf.f2_decile_factors`), times P(the E
+      layer does not screen it): the E-layer MUF for the F2 ray's own
+      obliquity at the E height, foE sec i (highest over the control
+      points). At night a weak E layer lets the steeper low-band rays
+      through and reflects the flatter ones, which are E modes;
     - E: P(day's E MUF > f), the E MUF foE sec i at the E height;
-    - below 10 MHz, zero if the daytime absorption estimate exceeds
-      ``absorption_limit_db`` (George and Bradley's form with the absorption
-      index averaged over the reflection points of all hops).
+    - zero if the mode's absorption (George and Bradley's form, per hop,
+      at every frequency, the index averaged over the reflection points of
+      the hops) exceeds ``absorption_limit_db``.
 
     The modes of one path and hour rise and fall with the same ionosphere,
     so they are taken as fully correlated: the path is open with the
     probability of its likeliest mode, and that weight is shared among the
     modes in proportion to their own probabilities times their relative
-    strength (``extra_hop_loss_db`` for each ground reflection beyond the
-    path's fewest: a few dB per reflection over land, common practice).
+    strength: their absorption, and ``extra_hop_loss_db`` for each ground
+    reflection beyond the path's fewest (a few dB per reflection over land,
+    common practice). A mode 10 dB weaker than another counts a tenth as
+    much.
 
 References
 ----------
-ITU-R P.533 (control points, mode set, absorption form); ITU-R P.1240
-(decile factors); Davies (1990) ch. 6 (secant law with curvature);
+ITU-R P.533 (control points, mode set, absorption floor); ITU-R P.1240
+(basic MUF, reference hop, decile ratios); Davies (1990) ch. 6 (secant law with curvature);
 George and Bradley (1974) (absorption); Forsythe et al. (2023) (PyIRI).
 See :mod:`.hops`, :mod:`.muf` and :mod:`.climatology` for the details.
 """
@@ -55,17 +61,14 @@ import numpy as np
 
 from ..grid import N_AZIMUTH, N_ELEVATION
 from . import climatology as clim
-from .hops import incidence_secant, min_hops, path_modes
-from .model import PropagationSettings
-from .muf import (E_DECILE_FACTORS, F2_DECILE_FACTORS, absorption_db, absorption_index,
-                  control_point_distances_km, control_points, m3000_muf, open_probability,
-                  secant_law_muf)
+from .hops import EARTH_RADIUS_KM, elevation_deg, incidence_secant, min_hops, path_modes
+from .model import PropagationSettings, hour_ranges_text
+from .muf import (ABSORPTION_HEIGHT_KM, E_DECILE_FACTORS, absorption_db, absorption_index,
+                  control_point_distances_km, control_points, f2_decile_factors, open_probability,
+                  p1240_dmax_km, p1240_f2_muf, secant_law_muf)
 
 __all__ = ["GoalGeometry", "ModeTable", "ModeShare", "Needs", "prepare_goal", "band_needs",
-           "ABSORPTION_BELOW_HZ", "MIN_PROBABILITY", "OPEN_HOUR_FRACTION"]
-
-ABSORPTION_BELOW_HZ = 10e6
-"""The daytime absorption estimate is applied below this frequency only."""
+           "prepare_goal_months", "MIN_PROBABILITY", "OPEN_HOUR_FRACTION"]
 
 MIN_PROBABILITY = 1e-3
 """Mode probabilities below this count as closed: the normal tail of the
@@ -180,11 +183,23 @@ class Needs:
     hours_utc : tuple of int
         The hours evaluated.
     hour_open_fraction : tuple of float
-        Open fraction of each hour of ``hours_utc``.
+        Open fraction of each hour of ``hours_utc`` (averaged over the
+        months).
     model : str
     freq_hz : float
     caveats : tuple of str
         Plain sentences on what the figures do not include.
+    months : tuple of int
+        The months modelled, in the order of the slots below.
+    open_share_by_slot : ndarray, shape (n_months, n_hours)
+        Open share of the goal's points in each month and hour.
+    slot, cell, slot_weight : ndarray, shape (n_entries,)
+        The same needs, sparse, per (month, hour): entry k puts
+        ``slot_weight[k]`` on grid cell ``cell[k]`` (elevation bin x 360 +
+        azimuth bin) in slot ``slot[k]`` (month index x n_hours + hour
+        index). One slot's weights sum to its open share, so ``weights``
+        is their sum over the slots divided by the number of slots. At
+        most points x modes entries per slot: no dense grid per hour.
     """
 
     weights: np.ndarray
@@ -199,6 +214,11 @@ class Needs:
     model: str
     freq_hz: float
     caveats: tuple[str, ...]
+    months: tuple[int, ...] = ()
+    open_share_by_slot: np.ndarray | None = None
+    slot: np.ndarray | None = None
+    cell: np.ndarray | None = None
+    slot_weight: np.ndarray | None = None
 
 
 def _check(settings: PropagationSettings, path: str) -> None:
@@ -250,6 +270,13 @@ def prepare_goal(settings: PropagationSettings, station_lon_deg: float, station_
     ----------
     ITU-R P.533 (control points); Forsythe et al. (2023) (PyIRI).
     """
+    return _prepare(settings, (int(settings.month),), station_lon_deg, station_lat_deg, lons_deg, lats_deg,
+                    bearing_deg, distance_km, path, progress)[0]
+
+
+def _prepare(settings: PropagationSettings, months: tuple[int, ...], station_lon_deg: float,
+             station_lat_deg: float, lons_deg, lats_deg, bearing_deg, distance_km, path: str,
+             progress: Progress | None) -> tuple[GoalGeometry, ...]:
     _check(settings, path)
     lons = np.asarray(lons_deg, dtype=float).ravel()
     lats = np.asarray(lats_deg, dtype=float).ravel()
@@ -257,7 +284,8 @@ def prepare_goal(settings: PropagationSettings, station_lon_deg: float, station_
     dist = np.asarray(distance_km, dtype=float).ravel()
     if not lons.size == lats.size == bearing.size == dist.size:
         raise ValueError("prepare_goal: lons_deg, lats_deg, bearing_deg and distance_km differ in length")
-    total = 3 if settings.model == "climatology" else 1
+    clim_model = settings.model == "climatology"
+    total = 2 + len(months) if clim_model else 1
     if progress is not None:
         progress(0, total)
 
@@ -271,15 +299,33 @@ def prepare_goal(settings: PropagationSettings, station_lon_deg: float, station_
         progress(1, total)
 
     hours = tuple(settings.hours)
-    iono = None
-    solar = None
-    hop_zenith = None
-    if settings.model == "climatology":
-        solar = clim.solar_input(settings.solar_flux, settings.sunspot_number)
-        ut = np.asarray(hours, dtype=float) + 0.5
-        raw = clim.ionosphere(settings.year, settings.month, ut, cp_lon.ravel(), cp_lat.ravel(),
-                              solar.flux_sfu, settings.fof2_maps)
-        shape = (len(hours), lons.size, 2)
+    common = dict(model=settings.model, path=path,
+                  station_lon_deg=float(station_lon_deg), station_lat_deg=float(station_lat_deg),
+                  lons_deg=_frozen(lons), lats_deg=_frozen(lats), bearing_deg=_frozen(bearing),
+                  distance_km=_frozen(dist), hours_utc=hours,
+                  control_lons_deg=_frozen(cp_lon), control_lats_deg=_frozen(cp_lat), year=int(settings.year))
+    if not clim_model:
+        table = _geometry_table(dist, len(hours), settings)
+        return tuple(GoalGeometry(**common, ionosphere=None, hop_zenith_deg=None, solar=None, month=int(m),
+                                  modes=table) for m in months)
+
+    per_month = [settings.for_month(m) for m in months]
+    solars = [clim.solar_input(s.solar_flux, s.sunspot_number) for s in per_month]
+    ut = np.asarray(hours, dtype=float) + 0.5
+    raws = clim.ionosphere_months(settings.year, months, ut, cp_lon.ravel(), cp_lat.ravel(),
+                                  [s.flux_sfu for s in solars], settings.fof2_maps)
+    if progress is not None:
+        progress(2, total)
+    # the absorption estimate looks at every hop, not only the two control
+    # points (beyond 4000 km those are the first and last hop midpoints, so
+    # the sets agree there)
+    k = int(n0.max()) if n0.size else 1
+    valid = np.arange(k)[None, :] < n0[:, None]
+    along_hops = np.where(valid, (np.arange(k)[None, :] + 0.5) * hop_km[:, None], 0.0)
+    hop_lon, hop_lat = control_points(station_lon_deg, station_lat_deg, bearing, along_hops)
+    shape = (len(hours), lons.size, 2)
+    out = []
+    for i, (m, solar, raw) in enumerate(zip(months, solars, raws)):
         iono = clim.Ionosphere(
             hours_utc=_frozen(ut),
             fof2_mhz=_frozen(raw.fof2_mhz.reshape(shape)),
@@ -287,39 +333,22 @@ def prepare_goal(settings: PropagationSettings, station_lon_deg: float, station_
             m3000f2=_frozen(raw.m3000f2.reshape(shape)),
             foe_mhz=_frozen(raw.foe_mhz.reshape(shape)),
             solar_zenith_deg=_frozen(raw.solar_zenith_deg.reshape(shape)),
+            gyrofrequency_mhz=_frozen(raw.gyrofrequency_mhz.reshape(shape)),
+            dip_latitude_deg=_frozen(raw.dip_latitude_deg.reshape(shape)),
         )
-        if progress is not None:
-            progress(2, total)
-        # the absorption estimate looks at every hop, not only the two
-        # control points (beyond 4000 km those are the first and last hop
-        # midpoints, so the sets agree there)
-        k = int(n0.max()) if n0.size else 1
-        valid = np.arange(k)[None, :] < n0[:, None]
-        along_hops = np.where(valid, (np.arange(k)[None, :] + 0.5) * hop_km[:, None], 0.0)
-        hop_lon, hop_lat = control_points(station_lon_deg, station_lat_deg, bearing, along_hops)
-        chi = clim.solar_zenith_deg(settings.year, settings.month, ut, hop_lon.ravel(), hop_lat.ravel())
+        chi = clim.solar_zenith_deg(settings.year, m, ut, hop_lon.ravel(), hop_lat.ravel())
         chi = chi.reshape(len(hours), lons.size, k)
         hop_zenith = _frozen(np.where(valid[None, :, :], chi, np.nan))
-        table = _climatology_table(dist, iono, hop_zenith, solar.sunspot_number, settings)
+        table = _climatology_table(dist, iono, hop_zenith, solar.sunspot_number, per_month[i])
+        out.append(GoalGeometry(**common, ionosphere=iono, hop_zenith_deg=hop_zenith, solar=solar,
+                                month=int(m), modes=table))
         if progress is not None:
-            progress(3, total)
-    else:
-        table = _geometry_table(dist, len(hours), settings)
-    return GoalGeometry(
-        model=settings.model, path=path,
-        station_lon_deg=float(station_lon_deg), station_lat_deg=float(station_lat_deg),
-        lons_deg=_frozen(lons), lats_deg=_frozen(lats), bearing_deg=_frozen(bearing),
-        distance_km=_frozen(dist), hours_utc=hours,
-        control_lons_deg=_frozen(cp_lon), control_lats_deg=_frozen(cp_lat),
-        ionosphere=iono, hop_zenith_deg=hop_zenith, solar=solar, year=int(settings.year), month=int(settings.month),
-        modes=table,
-    )
+            progress(3 + i, total)
+    return tuple(out)
 
 
-def _weighted_quantiles(values: np.ndarray, weights: np.ndarray, qs) -> list[float]:
-    order = np.argsort(values, kind="stable")
-    v = values[order]
-    w = weights[order]
+def _sorted_quantiles(v: np.ndarray, w: np.ndarray, qs) -> list[float]:
+    """Weighted quantiles of values already sorted ascending (midpoint rule)."""
     cum = np.cumsum(w) - 0.5 * w
     return [float(np.interp(q, cum / w.sum(), v)) for q in qs]
 
@@ -342,6 +371,10 @@ class ModeTable:
         points); 0 for E modes; None for the geometry model.
     absorption_index : ndarray or None, shape (n_hours, n_points, 1)
         George-Bradley index averaged over the hops' reflection points.
+    decile_lower, decile_upper : ndarray or None, shape (n_hours, n_points, n_modes)
+        Day-to-day decile ratios of each mode's MUF.
+    gyrofrequency_mhz : ndarray or None, shape (n_hours, n_points, 1)
+        Gyrofrequency at absorption heights over the path (MHz).
     """
 
     layer: tuple[str, ...]
@@ -350,6 +383,9 @@ class ModeTable:
     muf_mhz: np.ndarray | None
     screen_muf_mhz: np.ndarray | None
     absorption_index: np.ndarray | None
+    decile_lower: np.ndarray | None = None
+    decile_upper: np.ndarray | None = None
+    gyrofrequency_mhz: np.ndarray | None = None
 
 
 def _geometry_table(distance_km: np.ndarray, n_hours: int, settings: PropagationSettings) -> ModeTable:
@@ -367,78 +403,138 @@ def _climatology_table(distance_km: np.ndarray, io: clim.Ionosphere, hop_zenith_
     foe = io.foe_mhz
     he = settings.e_height_km
     d = np.broadcast_to(distance_km[None, :], fo.shape[:2])
-    modes = path_modes(d, hr.mean(axis=-1), he, settings.min_elevation_deg,
-                       extra_f2_hops=2, extra_e_hops=1, max_e_distance_km=4000.0)
-    hops = modes.hops                                  # (T, N, M)
-    el = modes.elevation_deg
-    muf = np.zeros(hops.shape)
+    h_mean = hr.mean(axis=-1)
+    # F2: P.1240's reference hop sets the lowest order, ceil(D / d_max) with
+    # the shorter d_max of the two control points; a mode that would leave
+    # below the minimum elevation at the map's hmF2 is not launched, so the
+    # order is raised until it meets it
+    dmax = np.min(p1240_dmax_km(fo, foe, io.m3000f2), axis=-1)
+    n_f2 = np.maximum(np.maximum(np.ceil(d / dmax - 1e-9), 1).astype(int),
+                      min_hops(d, h_mean, settings.min_elevation_deg))
+    # E: every path, with as many hops as it takes (night-time E hops carry
+    # the low bands across oceans); the fewest meeting the minimum elevation
+    n_e = min_hops(d, he, settings.min_elevation_deg)
+    layers, hop_cols = [], []
+    for k in range(3):
+        layers.append("F2")
+        hop_cols.append(n_f2 + k)
+    for k in range(2):
+        layers.append("E")
+        hop_cols.append(n_e + k)
+    hops = np.stack(hop_cols, axis=-1)                 # (T, N, M)
+    el = np.empty(hops.shape)
+    muf = np.empty(hops.shape)
     screen = np.zeros(hops.shape)
-    safe_hops = np.maximum(hops, 1)
-    for j, layer in enumerate(modes.layer):
-        hop_km = d / safe_hops[..., j]
+    lower, upper = f2_decile_factors(io.solar_zenith_deg, io.dip_latitude_deg)   # (T, N, 2)
+    dec_lo = np.empty(hops.shape)
+    dec_hi = np.empty(hops.shape)
+    for j, layer in enumerate(layers):
+        hop_km = d / hops[..., j]
         if layer == "F2":
-            muf[..., j] = np.min(m3000_muf(fo, io.m3000f2, hop_km[..., None], hr), axis=-1)
-            # E screening: the E layer's MUF for this ray's own angle
+            el[..., j] = elevation_deg(hop_km, h_mean)
+            muf[..., j] = np.min(p1240_f2_muf(fo, foe, io.m3000f2, hop_km[..., None], io.gyrofrequency_mhz),
+                                 axis=-1)
+            # E screening: the E layer's MUF for this ray's own obliquity at
+            # the E height, the highest over the control points
             screen[..., j] = np.max(foe * incidence_secant(el[..., j], he)[..., None], axis=-1)
+            dec_lo[..., j] = lower.min(axis=-1)
+            dec_hi[..., j] = upper.max(axis=-1)
         else:
+            el[..., j] = elevation_deg(hop_km, he)
             muf[..., j] = np.min(secant_law_muf(foe, hop_km[..., None], he), axis=-1)
-    muf = np.where(hops > 0, muf, 0.0)
+            dec_lo[..., j], dec_hi[..., j] = E_DECILE_FACTORS
     index = np.nanmean(absorption_index(hop_zenith_deg, sunspot_number), axis=-1)[..., None]
-    return ModeTable(modes.layer, _frozen(hops, int), _frozen(el), _frozen(muf), _frozen(screen),
-                     _frozen(index))
+    # the gyrofrequency at the absorbing heights: the 300 km IGRF value
+    # scaled by the dipole's r^-3 to 100 km
+    r = EARTH_RADIUS_KM
+    gyro_abs = (io.gyrofrequency_mhz.mean(axis=-1) * ((r + 300.0) / (r + ABSORPTION_HEIGHT_KM)) ** 3)[..., None]
+    return ModeTable(tuple(layers), _frozen(hops, int), _frozen(el), _frozen(muf), _frozen(screen),
+                     _frozen(index), _frozen(dec_lo), _frozen(dec_hi), _frozen(gyro_abs))
 
 
-def _mode_probability(table: ModeTable, freq_mhz: float, settings: PropagationSettings) -> np.ndarray:
+def _mode_probability(table: ModeTable, freq_mhz: float, settings: PropagationSettings
+                      ) -> tuple[np.ndarray, np.ndarray]:
+    """Open probability and loss (dB) of every mode, both (T, N, M)."""
+    exists = table.hops > 0
+    fewest = np.min(np.where(exists, table.hops, np.iinfo(np.int64).max), axis=-1, keepdims=True)
+    # every ground reflection more than the path's fewest costs extra_hop_loss_db
+    loss_db = settings.extra_hop_loss_db * np.where(exists, table.hops - fewest, 0)
     if table.muf_mhz is None:  # geometry: the lowest-order mode, always
-        return np.ones(table.hops.shape)
-    p = np.zeros(table.hops.shape)
+        return np.ones(table.hops.shape), loss_db
     f2 = np.array([layer == "F2" for layer in table.layer])
-    p[..., f2] = (open_probability(freq_mhz, table.muf_mhz[..., f2], F2_DECILE_FACTORS)
-                  * (1.0 - open_probability(freq_mhz, table.screen_muf_mhz[..., f2], E_DECILE_FACTORS)))
-    p[..., ~f2] = open_probability(freq_mhz, table.muf_mhz[..., ~f2], E_DECILE_FACTORS)
-    p = np.where((table.hops > 0) & (p >= MIN_PROBABILITY), p, 0.0)
-    if freq_mhz * 1e6 < ABSORPTION_BELOW_HZ:
-        loss_db = absorption_db(freq_mhz, np.nan_to_num(table.elevation_deg), table.hops,
-                                table.absorption_index)
-        p = np.where(loss_db <= settings.absorption_limit_db, p, 0.0)
-    return p
+    deciles = (table.decile_lower, table.decile_upper)
+    p = open_probability(freq_mhz, table.muf_mhz, deciles)
+    p[..., f2] *= 1.0 - open_probability(freq_mhz, table.screen_muf_mhz[..., f2], E_DECILE_FACTORS)
+    absorption = absorption_db(freq_mhz, np.nan_to_num(table.elevation_deg), table.hops,
+                               table.absorption_index, table.gyrofrequency_mhz)
+    p = np.where(exists & (p >= MIN_PROBABILITY) & (absorption <= settings.absorption_limit_db), p, 0.0)
+    return p, loss_db + absorption
 
 
-def _caveats(geo: GoalGeometry, freq_hz: float, settings: PropagationSettings) -> tuple[str, ...]:
+def _month_text(geos: tuple[GoalGeometry, ...]) -> str:
+    parts = []
+    for g in geos:
+        parts.append(f"{g.year}-{g.month:02d} F10.7 {g.solar.flux_sfu:.0f}")
+    fluxes = {round(g.solar.flux_sfu) for g in geos}
+    if len(fluxes) == 1:
+        months = ", ".join(f"{g.year}-{g.month:02d}" for g in geos) if len(geos) < 12 else \
+            f"all twelve months of {geos[0].year}"
+        return f"{months} at F10.7 {geos[0].solar.flux_sfu:.0f} sfu"
+    return "; ".join(parts) + " sfu"
+
+
+def _caveats(geos: tuple[GoalGeometry, ...], settings: PropagationSettings) -> tuple[str, ...]:
+    geo = geos[0]
+    hours = hour_ranges_text(geo.hours_utc)
     if geo.model == "geometry":
         return (
             "No ionosphere was consulted: fixed reflection heights "
             f"(F2 {settings.f2_height_km:g} km, E {settings.e_height_km:g} km), the lowest-order F2 "
             f"mode meeting {settings.min_elevation_deg:g} deg carries all the weight, "
-            "and every hour counts as open.",
+            f"and every hour counts as open (UT hours modelled: {hours}).",
         )
-    s = geo.solar
     out = [
         f"Monthly-median ionosphere from PyIRI ({settings.fof2_maps.upper()} foF2 maps) for "
-        f"{geo.year}-{geo.month:02d} at F10.7 {s.flux_sfu:.0f} sfu; the day-to-day spread uses fixed "
-        f"decile factors ({F2_DECILE_FACTORS[0]:g}/{F2_DECILE_FACTORS[1]:g} F2, "
-        f"{E_DECILE_FACTORS[0]:g}/{E_DECILE_FACTORS[1]:g} E).",
-        "Sporadic E, the F1 layer, auroral and polar effects, noise and power are not modelled.",
+        f"{_month_text(geos)}; UT hours modelled: {hours}. F2 MUF by ITU-R P.1240 (with its "
+        "gyrofrequency term and reference hop), E MUF by the secant law; the day-to-day spread "
+        "widens by night and at high magnetic latitude (decile ratios from memory).",
+        "Absorption (George and Bradley's form, per hop, at every frequency) weights the modes and "
+        f"closes a mode above {settings.absorption_limit_db:g} dB; each ground reflection beyond "
+        f"the fewest costs {settings.extra_hop_loss_db:g} dB.",
+        "Not modelled: noise and the lowest usable frequency it sets, transmitter power, sporadic E, "
+        "the F1 layer, auroral and polar-cap absorption, E-F (M) and ducted modes, deviative "
+        "absorption near reflection.",
     ]
-    # one sentence for every band, so that a plan over several bands says it once
-    out.append("The lowest usable frequency is not modelled, except for a daytime absorption estimate on "
-               f"bands below {ABSORPTION_BELOW_HZ / 1e6:g} MHz (a mode counts as closed above "
-               f"{settings.absorption_limit_db:g} dB); from {ABSORPTION_BELOW_HZ / 1e6:g} MHz up no "
-               "absorption is estimated.")
-    if s.clamped:
+    for s in {g.solar for g in geos if g.solar.clamped}:
         lo, hi = clim.SOLAR_FLUX_RANGE_SFU
         out.append(f"Solar input {s.requested_sfu:.0f} sfu was clamped to {s.flux_sfu:.0f} sfu: the maps "
                    f"are used only within {lo:.0f}..{hi:.0f} sfu (sunspot number 0..150).")
     return tuple(out)
 
 
-def band_needs(goal_geometry: GoalGeometry, freq_hz: float, settings: PropagationSettings) -> Needs:
+def prepare_goal_months(settings: PropagationSettings, station_lon_deg: float, station_lat_deg: float,
+                        lons_deg, lats_deg, bearing_deg, distance_km, path: str,
+                        progress: Progress | None = None) -> tuple[GoalGeometry, ...]:
+    """:func:`prepare_goal` for every month of ``settings.month_list``, each with its own solar input.
+
+    Returns
+    -------
+    tuple of GoalGeometry
+        One per month, in the order of ``settings.month_list``.
+    """
+    return _prepare(settings, settings.month_list, station_lon_deg, station_lat_deg, lons_deg, lats_deg,
+                    bearing_deg, distance_km, path, progress)
+
+
+def band_needs(goal_geometry: GoalGeometry | tuple[GoalGeometry, ...], freq_hz: float,
+               settings: PropagationSettings) -> Needs:
     """Takeoff-angle needs of a prepared goal at one frequency.
 
     Parameters
     ----------
-    goal_geometry : GoalGeometry
-        From :func:`prepare_goal` with the same settings.
+    goal_geometry : GoalGeometry or tuple of GoalGeometry
+        From :func:`prepare_goal` (one month) or :func:`prepare_goal_months`
+        (several: the needs are their average, each month's hours a slot).
     freq_hz : float
         Operating frequency (Hz).
     settings : PropagationSettings
@@ -449,59 +545,73 @@ def band_needs(goal_geometry: GoalGeometry, freq_hz: float, settings: Propagatio
 
     References
     ----------
-    ITU-R P.533 (mode set, absorption form); ITU-R P.1240 (decile
-    factors); Davies (1990) (secant law); George and Bradley (1974).
+    ITU-R P.533 (mode set, control points); ITU-R P.1240 (basic MUF,
+    decile ratios); Davies (1990) (secant law); George and Bradley (1974)
+    (absorption).
     """
-    geo = goal_geometry
-    if settings.model != geo.model:
-        raise ValueError(f"band_needs: the goal was prepared for the {geo.model} model, "
-                         f"not {settings.model}")
-    table = geo.modes
-    layers, hops, el = table.layer, table.hops, table.elevation_deg
-    p = _mode_probability(table, float(freq_hz) / 1e6, settings)
+    geos = (goal_geometry,) if isinstance(goal_geometry, GoalGeometry) else tuple(goal_geometry)
+    geo = geos[0]
+    for g in geos:
+        if settings.model != g.model:
+            raise ValueError(f"band_needs: the goal was prepared for the {g.model} model, "
+                             f"not {settings.model}")
+    layers = geo.modes.layer
+    f_mhz = float(freq_hz) / 1e6
+    parts = [_mode_probability(g.modes, f_mhz, settings) for g in geos]
+    p = np.concatenate([pp for pp, _ in parts], axis=0)          # (S, N, M), S = months x hours
+    loss_db = np.concatenate([ll for _, ll in parts], axis=0)
+    hops = np.concatenate([g.modes.hops for g in geos], axis=0)
+    el = np.concatenate([g.modes.elevation_deg for g in geos], axis=0)
 
-    n_hours, n_points, n_modes = p.shape
-    q = p.max(axis=-1)                                       # (T, N) open probability
-    # Open modes share the weight by probability and by relative strength:
-    # every ground reflection more than the path's fewest costs
-    # ``extra_hop_loss_db``, so the low-order modes that carry most of the
-    # signal also carry most of the need.
-    exists = hops > 0
-    fewest = np.min(np.where(exists, hops, np.iinfo(np.int64).max), axis=-1, keepdims=True)
-    extra = np.where(exists, hops - fewest, 0)
-    strength = 10.0 ** (-settings.extra_hop_loss_db * extra / 10.0)
+    n_slots, n_points, n_modes = p.shape
+    n_hours = len(geo.hours_utc)
+    q = p.max(axis=-1)                                       # (S, N) open probability
+    # Open modes share the weight by probability and by relative strength
+    # (absorption and extra ground reflections), so a mode 10 dB weaker
+    # than another carries a tenth of its part of the need.
+    open_loss = np.where(p > 0, loss_db, np.inf)
+    best = np.min(open_loss, axis=-1, keepdims=True)
+    with np.errstate(invalid="ignore", over="ignore"):
+        strength = np.where(p > 0, 10.0 ** (-(loss_db - np.where(np.isfinite(best), best, 0.0)) / 10.0), 0.0)
     ps = p * strength
     total_p = ps.sum(axis=-1)
     with np.errstate(invalid="ignore", divide="ignore"):
         share = np.where(total_p[..., None] > 0, ps / total_p[..., None], 0.0)
-    w = q[..., None] * share / max(n_hours * n_points, 1)   # (T, N, M)
+    w_slot = q[..., None] * share / max(n_points, 1)          # (S, N, M); one slot sums to its open share
 
-    live = w > 0
+    live = w_slot > 0
     el_bin = np.clip(np.rint(np.where(live, el, 0.0)), 0, N_ELEVATION - 1).astype(int)
-    az_bin = np.broadcast_to((np.rint(geo.bearing_deg).astype(int) % N_AZIMUTH)[None, :, None], w.shape)
+    az_bin = np.broadcast_to((np.rint(geo.bearing_deg).astype(int) % N_AZIMUTH)[None, :, None], w_slot.shape)
     flat = (el_bin * N_AZIMUTH + az_bin)[live]
-    grid = np.bincount(flat, weights=w[live], minlength=N_ELEVATION * N_AZIMUTH)
+    wl_slot = w_slot[live]
+    slot = np.broadcast_to(np.arange(n_slots)[:, None, None], w_slot.shape)[live]
+    grid = np.bincount(flat, weights=wl_slot / max(n_slots, 1), minlength=N_ELEVATION * N_AZIMUTH)
     weights = _frozen(grid.reshape(N_ELEVATION, N_AZIMUTH))
 
     open_fraction = float(q.mean()) if q.size else 0.0
-    hour_fraction = q.mean(axis=1) if n_points else np.zeros(n_hours)
+    by_slot = q.mean(axis=1) if n_points else np.zeros(n_slots)
+    by_month_hour = by_slot.reshape(len(geos), n_hours)
+    hour_fraction = by_month_hour.mean(axis=0)
     open_hours = tuple(h for h, fr in zip(geo.hours_utc, hour_fraction) if fr >= OPEN_HOUR_FRACTION)
 
     p10 = med = p90 = None
     mode_list: list[ModeShare] = []
     if live.any():
-        wl = w[live]
-        el_l = el[live]
-        p10, med, p90 = _weighted_quantiles(el_l, wl, (0.1, 0.5, 0.9))
-        layer_idx = np.broadcast_to(np.arange(n_modes), w.shape)[live]
+        # one sort of the takeoff angles serves every quantile: a subset of
+        # a sorted array stays sorted
+        order = np.argsort(el[live], kind="stable")
+        el_l = el[live][order]
+        wl = wl_slot[order]
+        p10, med, p90 = _sorted_quantiles(el_l, wl, (0.1, 0.5, 0.9))
+        layer_idx = np.broadcast_to(np.arange(n_modes), w_slot.shape)[live][order]
         layer_name = np.array(layers)[layer_idx]
-        hop_l = hops[live]
+        hop_l = hops[live][order]
         total = wl.sum()
         for layer in ("F2", "E"):
             for n in np.unique(hop_l[layer_name == layer]):
                 sel = (layer_name == layer) & (hop_l == n)
                 mode_list.append(ModeShare(layer, int(n), float(wl[sel].sum() / total),
-                                           _weighted_quantiles(el_l[sel], wl[sel], (0.5,))[0]))
+                                           _sorted_quantiles(el_l[sel], wl[sel], (0.5,))[0]))
         mode_list.sort(key=lambda m: (-m.share, m.layer, m.hops))
 
     return Needs(
@@ -514,5 +624,10 @@ def band_needs(goal_geometry: GoalGeometry, freq_hz: float, settings: Propagatio
         hour_open_fraction=tuple(float(x) for x in hour_fraction),
         model=geo.model,
         freq_hz=float(freq_hz),
-        caveats=_caveats(geo, float(freq_hz), settings),
+        caveats=_caveats(geos, settings),
+        months=tuple(g.month for g in geos),
+        open_share_by_slot=_frozen(by_month_hour),
+        slot=_frozen(slot, np.int32),
+        cell=_frozen(flat, np.int32),
+        slot_weight=_frozen(wl_slot),
     )

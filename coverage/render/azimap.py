@@ -394,8 +394,10 @@ def _title_block(fig, scene: BandScene, date_text: str, w_in: float, h_in: float
              f"baseline along {scene.orientation_deg:.1f}°{score}", fontsize=8.3, color=INK, va="baseline")
     how = ("median takeoff angle the goals need on this band" if scene.takeoff_from_needs
            else "no goal opens on this band: elevation of the first state's peak")
-    fig.text(x0, at(1.08), f"Lobes at {scene.takeoff_deg:.0f}° takeoff ({how})  ·  propagation model: "
-             f"{scene.model}  ·  {date_text}", fontsize=8.3, color=INK, va="baseline")
+    prop = scene.propagation_text or f"propagation model: {scene.model}"
+    fig.text(x0, at(1.08), f"Lobes at {scene.takeoff_deg:.0f}° takeoff ({how})  ·  {date_text}",
+             fontsize=8.3, color=INK, va="baseline")
+    fig.text(x0, at(1.30), prop[:1].upper() + prop[1:], fontsize=8.3, color=INK, va="baseline")
 
 
 def _legends(fig, scene: BandScene, cmap, norm, diam: float, map_bottom: float, w_in: float, h_in: float,
@@ -448,7 +450,9 @@ def _legends(fig, scene: BandScene, cmap, norm, diam: float, map_bottom: float, 
     if scene.avoid:
         handles.append(Patch(facecolor="none", edgecolor=AVOID, hatch="xxx", label="keep in the rear (avoid)"))
     if any(g.advantage_db is None for g in scene.goals):
-        handles.append(Patch(facecolor=CLOSED, hatch="....", label="goal closed on this band"))
+        handles.append(Patch(facecolor=CLOSED, hatch="....",
+                             label=f"goal closed on this band (open < {100 * scene.closed_share:.0f} % of "
+                                   "its point-hours)"))
     fig.legend(handles=handles, loc="upper left", bbox_to_anchor=(4.55 / w_in, (y_top + 0.28) / h_in),
                fontsize=7.2, frameon=False, title="Switch states (lobes)", title_fontsize=8,
                alignment="left", handlelength=1.6)

@@ -70,6 +70,10 @@ def elevation_figure(site, plan):
             seen.add(label)
             col = NEED_COLOURS[k % len(NEED_COLOURS)]
             open_text = "<1" if s < 0.005 else f"{100 * s:.0f}"
+            if s < site.propagation.closed_share:  # listed as closed, as on the map
+                need_ax.plot([], [], color="none", label=f"{label}: closed ({open_text}% open)")
+                k += 1
+                continue
             need_ax.fill_between(ELEVATION_DEG, share, step="mid", color=col, alpha=0.45, linewidth=0,
                                  label=f"need: {label} ({open_text}% open)", gid=f"need:{band}:{label}")
             top_share = max(top_share, float(share.max()))
@@ -103,8 +107,10 @@ def elevation_figure(site, plan):
         h2, l2 = need_ax.get_legend_handles_labels()
         ax.legend(h1 + h2, l1 + l2, fontsize=6.8, loc="upper left", bbox_to_anchor=(1.08, 1.0), frameon=False)
     axes[-1, 0].set_xlabel("elevation (takeoff angle), degrees", fontsize=8)
-    fig.suptitle(f"{site.station.name}: elevation cuts through each state's beam, with the goals' needs",
-                 fontsize=10, color=INK)
+    from .scene import propagation_text
+
+    fig.suptitle(f"{site.station.name}: elevation cuts through each state's beam, with the goals' needs\n"
+                 f"{propagation_text(site)}", fontsize=10, color=INK)
     fig.tight_layout(rect=(0, 0, 1, 0.98))
     return fig
 
@@ -162,6 +168,9 @@ def orientation_figure(site, plan):
              color=INK, fontweight="bold")
     fig.text(0.5, 0.925, "radius: mean advantage over one vertical, dB (weighted over the goals); "
              "\u2605 best allowed bearing", ha="center", fontsize=7.5, color=INK)
+    from .scene import propagation_text
+
+    fig.text(0.5, 0.90, propagation_text(site), ha="center", fontsize=7.5, color=INK)
     ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.06), ncol=1, fontsize=7.5, frameon=False)
     return fig
 

@@ -14,7 +14,7 @@ import numpy as np
 
 from ..grid import AZIMUTH_DEG, ELEVATION_DEG, to_true_bearing
 
-__all__ = ["Lobe", "GoalShade", "AvoidShade", "BandScene", "band_scene", "chosen_option",
+__all__ = ["Lobe", "GoalShade", "AvoidShade", "BandScene", "band_scene", "chosen_option", "propagation_text",
            "key_takeoff_deg", "true_bearing_row", "lobe_radius_km", "slug"]
 
 
@@ -78,6 +78,8 @@ class BandScene:
     lobe_peak_km: float
     lobe_floor_db: float
     ring_step_km: float
+    propagation_text: str = ""
+    closed_share: float = 0.0
 
     @property
     def lobe_top_dbi(self) -> float:
@@ -172,7 +174,11 @@ def band_scene(site, plan, band_name: str) -> BandScene:
         g = grouped.setdefault(k, {"goal": goal, "rows": []})
         g["rows"].append((row.path, row.state, row.advantage_db, float(row.open_fraction)))
     goals = []
+    share_min = float(site.propagation.closed_share)
     for g in grouped.values():
+        # a goal open on fewer than closed_share of its point-hours is drawn
+        # and listed as closed, not shaded as served
+        g["rows"] = [r if r[3] >= share_min else (r[0], r[1], None, r[3]) for r in g["rows"]]
         advs = [r[2] for r in g["rows"] if r[2] is not None]
         goals.append(GoalShade(g["goal"].name, g["goal"].region, goal_area(site, g["goal"]).geometry,
                                tuple(g["rows"]), max(advs) if advs else None))
@@ -192,4 +198,32 @@ def band_scene(site, plan, band_name: str) -> BandScene:
         orientation_deg=theta, score_db=None if entry is None else float(entry.score_db),
         model=site.propagation.model, takeoff_deg=float(takeoff), takeoff_from_needs=from_needs,
         lobes=lobes, goals=tuple(goals), avoid=avoids, lobe_peak_km=float(site.map.lobe_peak_km),
-        lobe_floor_db=float(site.map.lobe_floor_db), ring_step_km=float(site.map.ring_step_km))
+        lobe_floor_db=float(site.map.lobe_floor_db), ring_step_km=float(site.map.ring_step_km),
+        propagation_text=propagation_text(site), closed_share=float(site.propagation.closed_share))
+
+
+_MONTH_NAMES = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
+
+
+def _hours_text(hours: tuple[int, ...]) -> str:
+    from ..propagation.model import hour_ranges_text
+
+    text = hour_ranges_text(hours)
+    return "all UT hours" if text == "all day" else f"UT {text}"
+
+
+def propagation_text(site) -> str:
+    """What the needs were computed for, in one line: model, month(s), solar input, hours."""
+    prop = site.propagation
+    hours = _hours_text(prop.hours)
+    if prop.model != "climatology":
+        return f"propagation model: {prop.model} (no ionosphere), {hours}"
+    months = prop.month_list
+    when = (f"all months {prop.year}" if len(months) == 12
+            else ", ".join(_MONTH_NAMES[m - 1] for m in months) + f" {prop.year}")
+    per = [prop.for_month(m) for m in months]
+    flux = [p.solar_flux for p in per if p.solar_flux is not None]
+    spots = [p.sunspot_number for p in per if p.sunspot_number is not None]
+    values, name = (flux, "F10.7") if flux else (spots, "R12")
+    solar = f"{name} {min(values):g}" if min(values) == max(values) else f"{name} {min(values):g}-{max(values):g}"
+    return f"propagation model: climatology, {when}, {solar}, {hours}"

@@ -4,7 +4,9 @@ from __future__ import annotations
 from ..plan.planner import needs_for_site
 from ..progress import ProgressBar
 
-__all__ = ["build", "build_from_goal_bands", "format_text"]
+__all__ = ["SITE_SECTIONS", "build", "build_from_goal_bands", "format_text"]
+
+SITE_SECTIONS = ("station", "band", "goal")  # [array] is not used here
 
 
 def _round(x, nd):
@@ -32,28 +34,28 @@ def build_from_goal_bands(site, rows, caveats) -> dict:
             "modes": [{"layer": m.layer, "hops": m.hops, "share": round(m.share, 4),
                        "elevation_deg": round(m.elevation_deg, 1)} for m in n.modes],
             "open_hours_utc": list(n.open_hours_utc),
+            "by_month": _by_month(n),
         })
     return {"model": site.propagation.model, "needs": needs, "caveats": list(caveats)}
 
 
+def _by_month(n) -> list[dict]:
+    """Per month, the open share of each UT hour 0..23 (None for an hour not modelled)."""
+    if n.open_share_by_slot is None:
+        return []
+    out = []
+    for mi, month in enumerate(n.months):
+        hours = [None] * 24
+        for hi, h in enumerate(n.hours_utc):
+            hours[h] = round(float(n.open_share_by_slot[mi, hi]), 4)
+        out.append({"month": int(month), "open_share_by_hour": hours})
+    return out
+
+
 def _hour_ranges(hours: list[int]) -> str:
-    if not hours:
-        return "-"
-    if len(hours) == 24:
-        return "all day"
-    hs = sorted(hours)
-    runs = []
-    start = prev = hs[0]
-    for h in hs[1:]:
-        if h != prev + 1:
-            runs.append((start, prev))
-            start = h
-        prev = h
-    runs.append((start, prev))
-    # a run ending at 23 and one starting at 0 are one run across midnight
-    if len(runs) > 1 and runs[0][0] == 0 and runs[-1][1] == 23:
-        runs = [(runs[-1][0], runs[0][1])] + runs[1:-1]
-    return " ".join(f"{a:02d}-{b + 1:02d}" for a, b in runs)
+    from ..propagation.model import hour_ranges_text
+
+    return hour_ranges_text(hours, " ") or "-"
 
 
 def _mode_text(modes: list[dict], limit: int = 3) -> str:

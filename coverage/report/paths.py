@@ -6,7 +6,9 @@ import numpy as np
 from ..geo.paths import bearing_arc, goal_paths
 from ..geo.regions import goal_points, region_area
 
-__all__ = ["build", "format_text", "goal_path_rows"]
+__all__ = ["SITE_SECTIONS", "build", "format_text", "goal_path_rows"]
+
+SITE_SECTIONS = ("station", "goal")  # [array] is not used here
 
 
 def goal_path_rows(site) -> list[dict]:
@@ -33,6 +35,7 @@ def build(site, args=None) -> dict:
     st = site.station
     return {
         "station": {"lat_deg": round(st.lat_deg, 6), "lon_deg": round(st.lon_deg, 6), "locator": st.locator},
+        "points_per_goal": site.propagation.points_per_goal,
         "goals": goal_path_rows(site),
     }
 
@@ -50,6 +53,11 @@ def format_text(result: dict) -> str:
         lines.append(f"{g['name'][:28]:<28} {g['path']:<5} {arc:>22} {b['median']:7.1f}"
                      f" {d['min']:9.0f} {d['median']:9.0f} {d['max']:9.0f} {g['points']:6d}")
     lines.append("")
+    few = [g["name"] for g in result["goals"] if g["points"] < result.get("points_per_goal", 0)]
+    if few:
+        lines.append(f"Fewer points than points_per_goal ({result['points_per_goal']}) for "
+                     f"{', '.join(few)}: the region is smaller than 1 km2 (one point stands for it) or too "
+                     "thin to sample finer.")
     lines.append("Bearings are true (clockwise from north); long path = bearing + 180 deg, "
                  "distance = 40030 km - short.")
     return "\n".join(lines) + "\n"
