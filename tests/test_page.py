@@ -66,6 +66,8 @@ region = "circle:-17.8,178.0,80"
 bands = ["20 m"]
 [propagation]
 points_per_goal = 40
+months = [6, 12]
+solar_flux = 120
 """
 
 # names with quotes, angle brackets, an ampersand and non-Latin letters
@@ -140,22 +142,33 @@ def fake_stakes(result: dict) -> list[dict]:
 
 @pytest.fixture(scope="module")
 def pages(tmp_path_factory):
-    """(folder, plan.json dict, site) of the test site with a schedule and stakes, and the evil site."""
+    """(folder, plan.json dict, site, plan) of the test site with the schedule and stakes built here.
+
+    Beside it: ``real/`` (the plan's own keys), ``bare/`` (no schedule, no
+    stakes) and ``evil/`` (hostile names, one month).
+    """
     out = tmp_path_factory.mktemp("page")
     site = loads(SITE, file="test.toml")
     plan = run_plan(site, True)
     result = build_from_plan(site, plan)
+    result["months"] = list(MONTHS)
     result["schedule"] = fake_schedule(result, {op.option: list(op.state_names) for op in plan.options})
     result["stakes"] = fake_stakes(result)
     atomic_write_json(out / "plan.json", result)
     write_page(site, plan, result, out / "plan.html")
 
+    def page(folder: str, site, plan, res: dict) -> None:
+        (out / folder).mkdir()
+        atomic_write_json(out / folder / "plan.json", res)
+        write_page(site, plan, res, out / folder / "plan.html")
+
+    # the same plan as it comes from plan, without the data built here; and without a schedule at all
+    page("real", site, plan, build_from_plan(site, plan))
+    bare = {k: v for k, v in build_from_plan(site, plan).items() if k not in ("months", "schedule", "stakes")}
+    page("bare", site, plan, bare)
     evil = loads(EVIL_SITE, file="evil.toml")
     eplan = run_plan(evil, True)
-    eres = build_from_plan(evil, eplan)
-    (out / "evil").mkdir()
-    atomic_write_json(out / "evil" / "plan.json", eres)
-    write_page(evil, eplan, eres, out / "evil" / "plan.html")
+    page("evil", evil, eplan, build_from_plan(evil, eplan))
     return out, result, site, plan
 
 
@@ -299,7 +312,7 @@ def _number(text: str) -> float:
 
 def test_loads_offline_without_errors(browser, pages, capsys):
     out = pages[0]
-    for path in (out / "plan.html", out / "evil" / "plan.html"):
+    for path in (out / "plan.html", out / "real" / "plan.html", out / "bare" / "plan.html", out / "evil" / "plan.html"):
         ready = _open(browser, path)
         assert ready is not None, "the page script did not finish"
         errors = [e for e in browser.get_log("browser") if e["level"] in ("SEVERE", "WARNING")]
@@ -336,11 +349,16 @@ def test_sections_follow_their_data(browser, pages):
     cells = browser.find_elements("css selector", "#schedule-svg rect[data-hour]")
     assert len(cells) == 2 * len(MONTHS) * 24          # two bands x months x hours
     # a plan without a schedule or stakes says so, and its month and hour controls are off
-    _open(browser, out / "evil" / "plan.html")
+    _open(browser, out / "bare" / "plan.html")
     assert "no hour-by-hour schedule" in browser.find_element("id", "schedule-fig").text
     assert "no staking plan" in browser.find_element("id", "stakes").text
     assert not browser.find_element("id", "ctl-month").is_enabled()
     assert not browser.find_element("id", "ctl-hour").is_enabled()
+    # one month: the month list is off and the schedule says it holds one month
+    _open(browser, out / "evil" / "plan.html")
+    assert not browser.find_element("id", "ctl-month").is_enabled()
+    assert browser.find_element("id", "ctl-hour").is_enabled()
+    assert "A single-month plan" in browser.find_element("id", "schedule-fig").text
 
 
 def _drawn(drv) -> str:
@@ -436,6 +454,33 @@ def test_three_figures_are_plan_json(browser, pages):
     want = next(g["open_share"] for g in row["goals"] if g["name"] == "South America (long path)")
     shown = long_dl.find_element("css selector", '[data-figure="open-share"]').text
     assert _number(shown) / 100.0 == pytest.approx(want, abs=1e-12)
+
+
+def test_the_plans_own_schedule_reads_as_plan_json(browser, pages):
+    """The schedule written by plan (not built here): month, hour and figures as plan.json holds them."""
+    from selenium.webdriver.support.ui import Select
+
+    out = pages[0] / "real"
+    plan = json.loads((out / "plan.json").read_text())
+    _open(browser, out / "plan.html")
+    option = browser.find_element("id", "ctl-option").get_attribute("value")
+    Select(browser.find_element("id", "ctl-month")).select_by_value("12")
+    browser.execute_script("var h = document.getElementById('ctl-hour'); h.value = 14;"
+                           "h.dispatchEvent(new Event('input'))")
+    row = next(r for r in plan["schedule"] if r["option"] == option and r["band"] == "40 m"
+               and r["month"] == 12 and r["hour_utc"] == 14)
+    line = browser.find_element("id", "map-line").text
+    assert "December 14 UTC" in line
+    assert _number(line.split("score this hour")[1]) == row["score_db"]
+    lobes = browser.find_elements("css selector", "#layer-lobes polygon")
+    assert [p.get_attribute("data-state") for p in lobes] == [row["state"]]
+    goal = browser.find_element("css selector", '#layer-goals [data-goal="Europe"]')
+    browser.execute_script("arguments[0].focus()", goal)
+    shown = browser.find_element("css selector", '#goal-info [data-figure="advantage"]').text
+    assert _number(shown) == next(g["advantage_db"] for g in row["goals"] if g["name"] == "Europe")
+    n_bands = len({r["band"] for r in plan["schedule"]})
+    cells = browser.find_elements("css selector", "#schedule-svg rect[data-hour]")
+    assert len(cells) == n_bands * len(plan["months"]) * 24
 
 
 @pytest.mark.parametrize("width,height", [(1280, 800), (380, 800)])
