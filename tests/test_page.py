@@ -483,6 +483,28 @@ def test_the_plans_own_schedule_reads_as_plan_json(browser, pages):
     assert len(cells) == n_bands * len(plan["months"]) * 24
 
 
+def test_a_cardioid_lobe_points_along_the_baseline(browser, pages):
+    """A quarter-wave pair fed 0/-90 deg fires toward the lagging element (common
+    practice: the endfire cardioid), so on 40 m (spacing 0.25 wavelength) the
+    drawn "fwd" lobe is longest along the baseline bearing and "rev" opposite.
+    2 deg: the lobes are sampled on a 1 deg grid and drawn in whole km."""
+    from selenium.webdriver.support.ui import Select
+
+    out, result, _, _ = pages
+    _open(browser, out / "plan.html")
+    comp = next(c for c in result["spacing_comparison"] if c["spacing_m"] == 10.5)
+    Select(browser.find_element("id", "ctl-option")).select_by_value(comp["option"])
+    Select(browser.find_element("id", "ctl-band")).select_by_value("40 m")
+    for state, offset in (("fwd", 0.0), ("rev", 180.0)):
+        Select(browser.find_element("id", "ctl-state")).select_by_value(state)
+        pts = browser.find_element("css selector", "#layer-lobes polygon").get_attribute("points").split()
+        xy = [(float(pts[i]), float(pts[i + 1])) for i in range(0, len(pts), 2)]
+        x, y = max(xy, key=lambda p: math.hypot(*p))
+        bearing = math.degrees(math.atan2(x, -y)) % 360          # the page's y grows southward
+        want = (comp["best_orientation_deg"] + offset) % 360
+        assert abs((bearing - want + 180) % 360 - 180) <= 2.0, (state, bearing, want)
+
+
 @pytest.mark.parametrize("width,height", [(1280, 800), (380, 800)])
 def test_nothing_overflows_sideways(browser, pages, width, height, tmp_path):
     set_viewport(browser, width, height)

@@ -177,7 +177,25 @@ def _land(lon_deg: float, lat_deg: float) -> tuple[tuple[str, ...], tuple[str, .
 
 
 def page_drawing(site, plan) -> dict:
-    """Everything the page draws but does not print: outlines, lobe radii, colours."""
+    """Everything the page draws but does not print: outlines, lobe radii, colours.
+
+    Parameters
+    ----------
+    site : Site
+    plan : Plan
+        From :func:`lobeplan.report.plan.run_plan`.
+
+    Returns
+    -------
+    dict
+        JSON-ready. ``land``, ``borders`` and each goal's ``fill``/``edge``
+        are SVG path strings in km on the station's azimuthal-equidistant
+        map (x east, y south, the station at 0 0; the antipode at
+        ``rim_km``). ``options[i].lobes_km[band][state]`` holds 360 whole-km
+        radii over true bearings 0..359 deg, at the option's best bearing
+        (the first swept bearing when it has none), scaled as the maps
+        scale them (:func:`lobeplan.render.scene.lobe_radius_km`).
+    """
     from ..geo.regions import goal_area, region_area
     from . import azimap
 
@@ -204,13 +222,11 @@ def page_drawing(site, plan) -> dict:
     for op in plan.options:
         theta = op.best_orientation_deg if op.best_orientation_deg is not None else float(op.orientation_deg[0])
         options.append({"option": op.option, "states": list(op.state_names),
-                        "lobe_bearing_deg": float(theta), "lobes_km": _option_lobes(site, plan, op, float(theta))})
+                        "lobes_km": _option_lobes(site, plan, op, float(theta))})
     stops = [[float(p), c] for p, c in azimap._GOAL_STOPS]
     return {
         "rim_km": round(azimap.RIM_KM, 1),
         "ring_step_km": float(site.map.ring_step_km),
-        "lobe_peak_km": float(site.map.lobe_peak_km),
-        "lobe_floor_db": float(site.map.lobe_floor_db),
         "bands": [b.name for b in site.bands],
         "colours": {"sea": azimap.SEA, "land": azimap.LAND, "land_edge": azimap.LAND_EDGE, "ink": azimap.INK,
                     "ring": azimap.RING, "avoid": azimap.AVOID, "closed": azimap.CLOSED,
@@ -252,5 +268,10 @@ def page_html(plan_json_text: str, drawing: dict) -> str:
 
 
 def write_page(site, plan, result: dict, path: str | Path) -> Path:
-    """Write ``plan.html`` atomically beside ``plan.json`` (whose text it embeds)."""
+    """Write ``plan.html`` atomically.
+
+    ``result`` is the dict written to ``plan.json``; the page embeds the
+    same text (:func:`lobeplan.fileio.dumps_json`), so its figures are the
+    file's.
+    """
     return atomic_write_text(path, page_html(dumps_json(result), page_drawing(site, plan)))
