@@ -15,7 +15,8 @@ from pathlib import Path
 from typing import Any
 
 from .antenna.layout import layout_positions_m
-from .antenna.model import GROUND_CLASSES, USES, ArrayOption, ArraySpec, Feed, Ground, State
+from .antenna.model import (GROUND_CLASSES, USES, ArrayOption, ArraySpec, Feed, ForegroundSector, Ground,
+                            Radials, State)
 from .errors import SiteError
 from .geo import locator as _locator
 from .geo.station import Station
@@ -290,7 +291,9 @@ _TOP = ("station", "array", "feed", "band", "goal", "propagation", "map")
 _STATION = ("name", "locator", "lat", "lon")
 _ARRAY = ("height_m", "radius_m", "layout", "spacing_m", "elements", "positions_m", "orientation_deg",
           "orientation_step_deg", "allowed_orientation_deg", "ground", "ground_loss_ohm", "state", "option",
-          "use", "rdf_elevation_deg")
+          "use", "rdf_elevation_deg", "radials", "foreground")
+_RADIALS = ("count", "length_m", "depth_m", "height_m", "wire_diameter_mm")
+_FOREGROUND = ("bearing_deg", "from_m", "ground")
 _OPTION = ("name", "layout", "spacing_m", "elements", "positions_m", "state", "use")
 _STATE = ("name", "phase_deg", "amplitude", "line_m")
 _FEED = ("z0_ohm", "velocity_factor", "loss_db_per_100m_at_10mhz")
@@ -340,6 +343,7 @@ def loads(text: str, file: str = "<site>", base_dir: str = ".",
     goals = _goals(r, doc["goal"], bands)
     if array is not None:
         _check_height(r, array, bands)
+        _check_radials(r, array, bands)
     prop = _propagation(r, doc.get("propagation", {}))
     map_settings = _map(r, doc.get("map", {}))
     return Site(file, base_dir, station, array, orientation, bands, goals, prop, map_settings)
@@ -357,6 +361,24 @@ def _check_height(r: _Reader, array: ArraySpec, bands: tuple[Band, ...]) -> None
             raise r.fail("array.height_m", f"{array.height_m:g} m is {h:.2f} wavelength on band "
                          f"{b.name!r} ({b.freq_mhz:g} MHz); the element model holds up to "
                          f"{MAX_HEIGHT_WAVELENGTHS:g} wavelength")
+
+
+# elevated radials are wires in the moment method, checked up to this length
+MAX_ELEVATED_WAVELENGTHS = 1.0
+
+
+def _check_radials(r: _Reader, array: ArraySpec, bands: tuple[Band, ...]) -> None:
+    rad = array.radials
+    if rad is None or rad.buried:
+        return
+    for b in bands:
+        x = rad.length_m * b.freq_hz / 299_792_458.0
+        if x > MAX_ELEVATED_WAVELENGTHS:
+            raise r.fail("array.radials.length_m", f"{rad.length_m:g} m is {x:.2f} wavelength on band {b.name!r}; "
+                         f"elevated radials are modelled up to {MAX_ELEVATED_WAVELENGTHS:g} wavelength")
+    if rad.wire_diameter_mm * 1e-3 * 10.0 >= rad.length_m:
+        raise r.fail("array.radials.wire_diameter_mm", f"{rad.wire_diameter_mm:g} mm is too fat for "
+                     f"{rad.length_m:g} m radials; expected a thin wire")
 
 
 def _check_receive_only(r: _Reader, array: ArraySpec, band_tables: Any) -> None:
@@ -432,8 +454,7 @@ def _locator_problem(loc: str) -> str:
     return "expected 2, 4, 6 or 8 characters such as 'IN93' or 'IN93nk'"
 
 
-def _ground(r: _Reader, v: Any) -> Ground:
-    key = "array.ground"
+def _ground(r: _Reader, v: Any, key: str = "array.ground") -> Ground:
     if isinstance(v, str):
         if v not in GROUND_CLASSES:
             names = tuple(GROUND_CLASSES)
@@ -569,8 +590,11 @@ def _array(r: _Reader, t: Any, feed_t: Any) -> tuple[ArraySpec, Orientation]:
         raise r.fail("array.radius_m", f"{radius:g} m is too fat for a {height:g} m element; "
                      "expected radius_m under a twentieth of height_m")
     ground = _ground(r, t.get("ground", "average"))
-    loss = r.number(t, "ground_loss_ohm", key, default=2.0, lo=0.0, hi=1000.0,
+    # an explicit ground_loss_ohm overrides the radials; None: computed from them (or the default)
+    loss = r.number(t, "ground_loss_ohm", key, default=None, lo=0.0, hi=1000.0,
                     what="a series ground-loss resistance in ohm, 0 to 1000")
+    radials = _radials(r, t["radials"]) if "radials" in t else None
+    foreground = _foreground(r, t["foreground"]) if "foreground" in t else ()
     options: list[ArrayOption] = []
     if "option" in t:
         for name in ("layout", "spacing_m", "elements", "positions_m", "state", "use"):
@@ -608,7 +632,69 @@ def _array(r: _Reader, t: Any, feed_t: Any) -> tuple[ArraySpec, Orientation]:
     orientation = _orientation(r, t)
     rdf_el = r.number(t, "rdf_elevation_deg", key, default=20.0, lo=1.0, hi=89.0,
                       what="a takeoff angle from 1 to 89 deg for the receiving directivity factor")
-    return ArraySpec(height, radius, ground, loss, feed, tuple(options), rdf_el), orientation
+    return ArraySpec(height, radius, ground, loss, feed, tuple(options), rdf_el, radials=radials,
+                     foreground=foreground), orientation
+
+
+def _radials(r: _Reader, t: Any) -> Radials:
+    key = "array.radials"
+    t = r.table(t, key, _RADIALS)
+    has_depth, has_height = "depth_m" in t, "height_m" in t
+    if has_depth and has_height:
+        raise r.fail(key, "give either depth_m (buried radials) or height_m (elevated radials), not both")
+    if not (has_depth or has_height):
+        raise r.fail(key, "give depth_m (buried radials) or height_m (elevated radials)")
+    elevated = has_height
+    # elevated radials are wires in the moment method: 32 of them is already more than is built
+    count = r.number(t, "count", key, lo=2 if elevated else 1, hi=32 if elevated else 1000, integer=True,
+                     what=("a whole number of elevated radials from 2 to 32" if elevated
+                           else "a whole number of radials from 1 to 1000"))
+    length = r.number(t, "length_m", key, lo=0.0, hi=1000.0, lo_open=True,
+                      what="a radial length in metres, more than 0 and up to 1000")
+    depth = r.number(t, "depth_m", key, default=None, lo=0.0, hi=3.0, lo_open=True,
+                     what="a burial depth in metres, more than 0 and up to 3")
+    height = r.number(t, "height_m", key, default=None, lo=0.0, hi=20.0, lo_open=True,
+                      what="a height above ground in metres, more than 0 and up to 20")
+    wire = r.number(t, "wire_diameter_mm", key, default=2.0, lo=0.0, hi=50.0, lo_open=True,
+                    what="a wire diameter in mm, more than 0 and up to 50")
+    return Radials(count, length, depth, height, wire)
+
+
+def _foreground(r: _Reader, v: Any) -> tuple[ForegroundSector, ...]:
+    out = []
+    for i, t in enumerate(r.tables(v, "array.foreground")):
+        k = f"array.foreground[{i + 1}]"
+        r.table(t, k, _FOREGROUND)
+        lo, hi = r.number_list(t, "bearing_deg", k, length=2, why="[from, to], clockwise", lo=0.0, hi=360.0,
+                               what="a true bearing from 0 to 360 deg")
+        if lo == hi:
+            raise r.fail(_join(k, "bearing_deg"), f"[{lo:g}, {hi:g}] is an empty sector; expected "
+                         "[from, to] clockwise with from != to ([0, 360] for all round)")
+        from_m = r.number(t, "from_m", k, default=0.0, lo=0.0, hi=100000.0,
+                          what="a distance from the array's centre in metres, 0 to 100000")
+        if "ground" not in t:
+            raise r.fail(_join(k, "ground"), "missing; expected a ground class such as \"sea\" or "
+                         "{eps_r = ..., sigma_s_m = ...}")
+        ground = _ground(r, t["ground"], _join(k, "ground"))
+        sector = ForegroundSector(lo, hi, from_m, ground)
+        for j, other in enumerate(out):
+            if _sectors_overlap(sector, other):
+                raise r.fail(_join(k, "bearing_deg"), f"[{lo:g}, {hi:g}] overlaps array.foreground[{j + 1}] "
+                             f"[{other.from_deg:g}, {other.to_deg:g}]; expected sectors that do not overlap")
+        out.append(sector)
+    return tuple(out)
+
+
+def _sector_span(a: ForegroundSector) -> float:
+    span = (a.to_deg - a.from_deg) % 360.0
+    return 360.0 if span == 0.0 else span
+
+
+def _sectors_overlap(a: ForegroundSector, b: ForegroundSector) -> bool:
+    """Whether two clockwise bearing ranges share more than an edge."""
+    sa, sb = _sector_span(a), _sector_span(b)
+    start = (b.from_deg - a.from_deg) % 360.0   # b's start, seen from a's start
+    return start < sa or start + sb > 360.0
 
 
 def _option_states(r: _Reader, t: dict, key: str, n: int, layout: str) -> tuple[State, ...]:

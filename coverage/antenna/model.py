@@ -3,7 +3,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["Ground", "GROUND_CLASSES", "Feed", "State", "ArrayOption", "ArraySpec", "USES"]
+__all__ = ["Ground", "GROUND_CLASSES", "Feed", "State", "ArrayOption", "Radials", "ForegroundSector",
+           "ArraySpec", "DEFAULT_GROUND_LOSS_OHM", "USES"]
 
 
 @dataclass(frozen=True, slots=True)
@@ -97,13 +98,56 @@ class ArrayOption:
 
 
 @dataclass(frozen=True, slots=True)
+class Radials:
+    """The radial system of every element.
+
+    Exactly one of ``depth_m`` (buried) and ``height_m`` (elevated) is set.
+    """
+
+    count: int
+    length_m: float
+    depth_m: float | None = None
+    height_m: float | None = None
+    wire_diameter_mm: float = 2.0
+
+    @property
+    def buried(self) -> bool:
+        return self.height_m is None
+
+
+@dataclass(frozen=True, slots=True)
+class ForegroundSector:
+    """Ground beyond the array that the far field reflects on.
+
+    ``from_deg`` to ``to_deg`` is a clockwise range of true bearings (may
+    wrap); the sector's ground begins ``from_m`` from the array's centre.
+    """
+
+    from_deg: float
+    to_deg: float
+    from_m: float
+    ground: Ground
+
+
+DEFAULT_GROUND_LOSS_OHM = 2.0
+"""Series loss per base when the site gives neither radials nor a loss."""
+
+
+@dataclass(frozen=True, slots=True)
 class ArraySpec:
-    """Physical array common to every option: elements, ground, cable."""
+    """Physical array common to every option: elements, ground, cable.
+
+    ``ground_loss_ohm`` is the series loss per base given by the site (an
+    explicit override); None means "compute it from ``radials``".
+    ``foreground`` holds the sectors of other ground beyond the array.
+    """
 
     height_m: float
     radius_m: float
     ground: Ground
-    ground_loss_ohm: float
+    ground_loss_ohm: float | None
     feed: Feed
     options: tuple[ArrayOption, ...]
     rdf_elevation_deg: float = 20.0  # takeoff angle of the receiving directivity factor
+    radials: Radials | None = None
+    foreground: tuple[ForegroundSector, ...] = ()

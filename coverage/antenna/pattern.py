@@ -31,6 +31,7 @@ from .feed import Drive, drive_fed, drive_forced
 from .ground import reflection_vertical
 from .model import ArrayOption, ArraySpec, Ground, State
 from .mom import C0_M_S, ETA0_OHM, CoupledElements, solve_elements
+from .radials import ground_loss
 
 __all__ = [
     "GAIN_FLOOR_DBI",
@@ -43,6 +44,7 @@ __all__ = [
     "state_currents",
     "state_drive",
     "gain_from_currents_dbi",
+    "gains_from_currents_dbi",
     "LOBE_WINDOW_DB",
     "lobe_bearings_deg",
 ]
@@ -119,7 +121,7 @@ def state_drive(spec: ArraySpec, option: ArrayOption, state: State, freq_hz: flo
     if sol is None:
         sol = coupled_elements(spec, option, freq_hz)
     n = sol.n_elements
-    z_base = sol.impedance_ohm + spec.ground_loss_ohm * np.eye(n)
+    z_base = sol.impedance_ohm + np.diag(ground_loss(spec, option, freq_hz).ohm)
     if state.is_fed:
         if len(state.line_m) != n:
             raise ValueError(f"state {state.name!r}: need one line per element ({n})")
@@ -153,6 +155,17 @@ def _vertical_kernel(freq_hz: float, segment_m: float, n_node: int, ground: Grou
     return kern
 
 
+@functools.lru_cache(maxsize=32)
+def _array_phase(freq_hz: float, positions: tuple[tuple[float, float], ...]) -> np.ndarray:
+    """Horizontal phase of each element over the grid, shape (n_el, 91, 360) (cached)."""
+    k = 2.0 * math.pi * freq_hz / C0_M_S
+    pos = np.asarray(positions, dtype=float).reshape(-1, 2)
+    proj = pos[:, 0, None] * _COS_AZ[None, :] + pos[:, 1, None] * _SIN_AZ[None, :]  # (n_el, 360)
+    phase = np.exp(1j * k * _COS_EL[None, :, None] * proj[:, None, :])
+    phase.flags.writeable = False
+    return phase
+
+
 def gain_from_currents_dbi(sol: CoupledElements, ground: Ground, base_current_a: np.ndarray,
                            input_power_w: float) -> np.ndarray:
     """Gain over the grid for given base currents and input power.
@@ -170,14 +183,22 @@ def gain_from_currents_dbi(sol: CoupledElements, ground: Ground, base_current_a:
     ndarray, shape (91, 360)
         dBi in the array frame, floored at -60 dBi.
     """
+    return gains_from_currents_dbi(sol, (ground,), base_current_a, input_power_w)[0]
+
+
+def gains_from_currents_dbi(sol: CoupledElements, grounds, base_current_a: np.ndarray,
+                            input_power_w: float) -> np.ndarray:
+    """:func:`gain_from_currents_dbi` for several far-field grounds at once.
+
+    The array factor is shared; only the vertical factor (the Fresnel
+    reflection) differs per ground. Returns ndarray, shape (n_ground, 91, 360).
+    """
     k = 2.0 * math.pi * sol.freq_hz / C0_M_S
     nodes = sol.currents_on_wires(base_current_a)                       # (n_el, n_node)
-    kern = _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size, ground)
-    vert = nodes @ kern.T                                               # (n_el, 91)
-    pos = sol.positions_m
-    proj = pos[:, 0, None] * _COS_AZ[None, :] + pos[:, 1, None] * _SIN_AZ[None, :]  # (n_el, 360)
-    phase = np.exp(1j * k * _COS_EL[None, :, None] * proj[:, None, :])  # (n_el, 91, 360)
-    field = np.einsum("ep,epa->pa", vert, phase)
+    vert = np.stack([nodes @ _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size, g).T
+                     for g in grounds])                                 # (n_ground, n_el, 91)
+    phase = _array_phase(sol.freq_hz, tuple(map(tuple, sol.positions_m)))
+    field = np.einsum("gep,epa->gpa", vert, phase)
     gain = ETA0_OHM * k * k * (field.real ** 2 + field.imag ** 2) / (8.0 * math.pi * input_power_w)
     floor = 10.0 ** (GAIN_FLOOR_DBI / 10.0)
     return 10.0 * np.log10(np.maximum(gain, floor))
@@ -209,7 +230,7 @@ def array_pattern(spec: ArraySpec, option: ArrayOption, state: State, freq_hz: f
     sol = coupled_elements(spec, option, freq_hz)
     drive = state_drive(spec, option, state, freq_hz, sol)
     i = drive.base_current_a
-    ground_loss = 0.5 * spec.ground_loss_ohm * float(np.sum(np.abs(i) ** 2))
+    ground_loss_w = 0.5 * float(np.sum(ground_loss(spec, option, freq_hz).ohm * np.abs(i) ** 2))
     gain = gain_from_currents_dbi(sol, spec.ground, i, 1.0)
     for a in (gain, i, drive.feed_impedance_ohm, drive.element_power_w):
         a.flags.writeable = False
@@ -217,14 +238,16 @@ def array_pattern(spec: ArraySpec, option: ArrayOption, state: State, freq_hz: f
                        gain_dbi=gain, base_current_a=i, feed_impedance_ohm=drive.feed_impedance_ohm,
                        element_power_w=drive.element_power_w,
                        junction_impedance_ohm=drive.junction_impedance_ohm,
-                       line_loss_w=drive.line_loss_w, ground_loss_w=ground_loss,
+                       line_loss_w=drive.line_loss_w, ground_loss_w=ground_loss_w,
                        impedance_matrix_ohm=sol.impedance_ohm)
 
 
-def vertical_gain_dbi(spec: ArraySpec, freq_hz: float) -> np.ndarray:
+def vertical_gain_dbi(spec: ArraySpec, freq_hz: float, far_ground: Ground | None = None) -> np.ndarray:
     """Elevation pattern of one vertical of the same height, radius and ground.
 
-    Omnidirectional; ground loss in series at its base as for the array.
+    Omnidirectional; ground loss in series at its base as for the array (its
+    own radials, no neighbours). ``far_ground`` replaces ``spec.ground`` in
+    the far-field reflection only (a foreground class).
 
     Returns
     -------
@@ -232,10 +255,11 @@ def vertical_gain_dbi(spec: ArraySpec, freq_hz: float) -> np.ndarray:
         dBi at elevations 0..90 deg, floored at -60 dBi.
     """
     sol = solve_elements(spec.height_m, spec.radius_m, ((0.0, 0.0),), freq_hz)
-    r_in = float(sol.impedance_ohm[0, 0].real) + spec.ground_loss_ohm
+    r_in = float(sol.impedance_ohm[0, 0].real) + float(ground_loss(spec, None, freq_hz).ohm[0])
     i = np.array([math.sqrt(2.0 / r_in)], dtype=complex)  # 1 W input
     k = 2.0 * math.pi * freq_hz / C0_M_S
-    kern = _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size, spec.ground)
+    kern = _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size,
+                            spec.ground if far_ground is None else far_ground)
     vert = sol.currents_on_wires(i)[0] @ kern.T
     gain = ETA0_OHM * k * k * np.abs(vert) ** 2 / (8.0 * math.pi)
     return 10.0 * np.log10(np.maximum(gain, 10.0 ** (GAIN_FLOOR_DBI / 10.0)))

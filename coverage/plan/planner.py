@@ -19,6 +19,14 @@ An option with ``use = "receive"`` is scored the same way with directivity
 over the sky mean (:mod:`lobeplan.antenna.receive`) in place of gain, for
 the array and for the reference vertical alike.
 
+Foreground (``[[array.foreground]]``): ground that depends on true bearing
+cannot rotate with the array, so it enters through the need weights. With
+per-class masks M_k (true bearing, elevation; they sum to 1) and the array's
+pattern G_k computed once per ground class k, the score sums one correlation
+per class, sum_k correlate(W M_k, G_k) (see :mod:`lobeplan.plan.sweep`); the
+reference vertical is blended the same way (it stands at the same site). A
+receive option takes each class's directivity over its own sky mean.
+
 The site argument is duck-typed on :class:`lobeplan.site.Site`.
 """
 from __future__ import annotations
@@ -28,17 +36,19 @@ from typing import Callable
 
 import numpy as np
 
+from ..antenna.foreground import class_gains_dbi, foreground_masks, ground_classes
 from ..antenna.pattern import array_pattern, vertical_gain_dbi
 from ..antenna.receive import directivity_dbi
 from ..geo.paths import goal_paths
 from ..geo.regions import region_points
 from ..grid import N_AZIMUTH
 from ..propagation.needs import Needs, band_needs, prepare_goal_months
-from .sweep import correlate, floored, orientations, spectrum, weighted_quantile
+from .sweep import GAIN_FLOOR_DBI, correlate, floored, orientations, spectrum, weighted_quantile
 
 __all__ = ["avoid_credit_cap_db", "GoalBand", "OptionPlan", "Plan", "RankEntry", "GoalRow", "make_plan", "needs_for_site",
            "in_allowed", "distinct_maxima", "score_option", "prepare_needs", "symmetry_order", "goal_rows",
-           "receive_reference", "as_directivity", "windows_within"]
+           "receive_reference", "as_directivity", "windows_within", "site_foreground", "option_foreground",
+           "true_gain_dbi"]
 
 DISTINCT_DEG = 10.0  # ranking: maxima at least this far apart
 WINDOW_DB = 1.0      # orientation sensitivity: bearings within this of the best
@@ -119,6 +129,10 @@ class OptionPlan:
     # vertical's directivity
     use: str = "transmit"
     reference_db: dict | None = field(repr=False, default=None)   # band -> (91,), receive only
+    # with [[array.foreground]]: "masks" band -> (n_class, 91, 360) over true bearings,
+    # "gains" (band, state) -> (n_class, 91, 360) in the array frame (directivity for a
+    # receive option) and "ref" band -> (n_class, 91) for the vertical; empty without
+    foreground: dict = field(repr=False, default_factory=dict)
 
 
 @dataclass(frozen=True)
@@ -233,7 +247,8 @@ def make_plan(site, goal_bands: tuple[GoalBand, ...] | None = None,
     bands = {gb.band_name: gb.freq_hz for gb in goal_bands}
     ref = {name: vertical_gain_dbi(spec, f) for name, f in bands.items()}
 
-    prepared = prepare_needs(goal_bands, ref)  # shared by every option
+    fg = site_foreground(spec, bands)
+    prepared = prepare_needs(goal_bands, ref, fg)  # shared by every option
 
     method = "direct" if fixed else "fft"
     option_plans = []
@@ -242,14 +257,17 @@ def make_plan(site, goal_bands: tuple[GoalBand, ...] | None = None,
         patterns = {(band_name, s.name): array_pattern(spec, option, s, f)
                     for band_name, f in bands.items() for s in option.states}
         option_prepared, option_ref, scored = prepared, None, patterns
+        opt_fg = option_foreground(spec, option, patterns, fg)
         if option.receive:
             if not receive_ref:
                 rx = receive_reference(ref)
-                receive_ref.append((rx, prepare_needs(goal_bands, rx)))
-            option_ref, option_prepared = receive_ref[0]
+                rx_fg = _foreground_directivity(fg)
+                receive_ref.append((rx, prepare_needs(goal_bands, rx, rx_fg), rx_fg))
+            option_ref, option_prepared, rx_fg = receive_ref[0]
             scored = as_directivity(patterns)
+            opt_fg = _foreground_directivity(opt_fg, rx_fg)
         values, best_state = score_option(option, scored, goal_bands, option_prepared, thetas, orient.step_deg,
-                                          method)
+                                          method, opt_fg)
         weights = np.array([gb.weight * pre["open"] for gb, pre in zip(goal_bands, option_prepared)])
         open_rows = np.isfinite(values[:, 0]) & (weights > 0)
         if open_rows.any():
@@ -259,7 +277,8 @@ def make_plan(site, goal_bands: tuple[GoalBand, ...] | None = None,
         best_theta, best_score, window = _best(thetas, score, allowed)
         option_plans.append(OptionPlan(option.name, option.layout, option.spacing_m, thetas, score,
                                        allowed, best_theta, best_score, window, values, best_state,
-                                       tuple(s.name for s in option.states), patterns, option.use, option_ref))
+                                       tuple(s.name for s in option.states), patterns, option.use, option_ref,
+                                       opt_fg))
     ranking = _ranking(site, goal_bands, option_plans, ref)
     return Plan(tuple(goal_bands), tuple(option_plans), ranking, ref, caveats)
 
@@ -288,36 +307,128 @@ def as_directivity(patterns: dict) -> dict:
     return out
 
 
-def prepare_needs(goal_bands, ref: dict) -> list[dict]:
-    """Per goal-band pieces every option shares: sums, spectra, reference means."""
+def site_foreground(spec, bands: dict) -> dict:
+    """Masks and reference-vertical gains per class for every band; {} without a foreground.
+
+    ``bands`` maps band name -> frequency (Hz). Returns {"masks": band ->
+    (n_class, 91, 360), "ref": band -> (n_class, 91)}.
+    """
+    if not spec.foreground:
+        return {}
+    classes = ground_classes(spec)
+    return {"masks": {b: foreground_masks(spec, f) for b, f in bands.items()},
+            "ref": {b: np.stack([vertical_gain_dbi(spec, f, g) for g in classes]) for b, f in bands.items()}}
+
+
+def option_foreground(spec, option, patterns: dict, site_fg: dict) -> dict:
+    """The option's patterns once per ground class, with the site's masks; {} without."""
+    if not site_fg:
+        return {}
+    return {"masks": site_fg["masks"], "ref": site_fg["ref"],
+            "gains": {k: class_gains_dbi(spec, option, r) for k, r in patterns.items()}}
+
+
+def true_gain_dbi(plan_option: OptionPlan, band_name: str, state_name: str, theta_deg: float,
+                  floor_dbi: float | None = None) -> np.ndarray:
+    """A state's gain over true bearings for baseline bearing theta, foreground blended.
+
+    Parameters
+    ----------
+    plan_option : OptionPlan
+    band_name, state_name : str
+    theta_deg : float
+    floor_dbi : float, optional
+        Floor applied to every class before blending (the score's -30 dBi;
+        None: the pattern's own floor).
+
+    Returns
+    -------
+    ndarray, shape (91, 360)
+        dBi over true bearings: sum_k M_k G_k(a - theta) with a foreground,
+        else the pattern turned by theta (the score's Fourier shift).
+    """
+    key = (band_name, state_name)
+    fg = plan_option.foreground
+    gains = fg["gains"][key] if fg else plan_option.patterns[key].gain_dbi[None]
+    if floor_dbi is not None:
+        gains = np.maximum(gains, floor_dbi)
+    if not fg:
+        return _rotate(gains[0], theta_deg)
+    return sum(m * _rotate(g, theta_deg) for m, g in zip(fg["masks"][band_name], gains))
+
+
+def _ref_mean_fg(weights: np.ndarray, masks: np.ndarray, ref_k: np.ndarray) -> float:
+    """Mean of the reference vertical under the weights, blended per class."""
+    return float(sum(np.sum(weights * m * floored(g)[:, None]) for m, g in zip(masks, ref_k)) / np.sum(weights))
+
+
+def _foreground_directivity(fg: dict, converted: dict | None = None) -> dict:
+    """A foreground for a receive option: every class's gain as directivity over its sky mean.
+
+    ``converted`` is the site's foreground already converted (its reference is reused).
+    """
+    if not fg:
+        return {}
+    ref = converted["ref"] if converted else {b: np.stack([directivity_dbi(g) for g in r])
+                                              for b, r in fg["ref"].items()}
+    out = {"masks": fg["masks"], "ref": ref}
+    if "gains" in fg:
+        out["gains"] = {k: np.stack([directivity_dbi(g) for g in gk]) for k, gk in fg["gains"].items()}
+    return out
+
+
+def prepare_needs(goal_bands, ref: dict, foreground: dict | None = None) -> list[dict]:
+    """Per goal-band pieces every option shares: sums, spectra, reference means.
+
+    With a foreground (:func:`site_foreground`), ``spec`` is the spectrum of
+    W M_k for every ground class k stacked along the rows (n_class * 91, 181)
+    and ``weights`` stays W.
+    """
     prepared = []
     for gb in goal_bands:
         entry = {}
+        masks = foreground["masks"][gb.band_name] if foreground else None
         for tag, needs in (("", gb.needs), ("avoid_", gb.avoid_needs)):
             w = needs.weights if needs is not None else None
             w_sum = float(w.sum()) if w is not None else 0.0
             entry[tag + "weights"] = w
             entry[tag + "open"] = w_sum
-            entry[tag + "spec"] = spectrum(w) if w_sum > 0 else None
-            entry[tag + "ref"] = _ref_mean(w, ref[gb.band_name]) if w_sum > 0 else None
+            if masks is None:
+                entry[tag + "spec"] = spectrum(w) if w_sum > 0 else None
+                entry[tag + "ref"] = _ref_mean(w, ref[gb.band_name]) if w_sum > 0 else None
+            else:
+                # the classes stacked along the rows: one correlation sums them all
+                entry[tag + "spec"] = spectrum(np.concatenate(w[None] * masks)) if w_sum > 0 else None
+                entry[tag + "ref"] = (_ref_mean_fg(w, masks, foreground["ref"][gb.band_name])
+                                      if w_sum > 0 else None)
+        entry["masks"] = masks
         prepared.append(entry)
     return prepared
 
 
-def _advantage(weights, w_spec, w_sum, ref_mean, gain_floored, gain_spec, thetas, step_deg, method):
+def _advantage(weights, w_spec, w_sum, ref_mean, gain_floored, gain_spec, thetas, step_deg, method, masks=None):
     """Mean-gain advantage over one vertical at every bearing in ``thetas``.
 
     ``fft``: the circular cross-correlation (all bearings at once).
     ``direct``: one vectorised pass over the whole grid per bearing; used for
     a fixed bearing and as the benchmark's baseline.
+    With ``masks`` (n_class, 91, 360), ``gain_floored`` is (n_class, 91, 360)
+    and ``w_spec``/``gain_spec`` hold the classes stacked along the rows, so
+    that one correlation gives sum_k correlate(W M_k, G_k).
     """
-    if method == "fft":
+    if method == "fft":  # with a foreground both spectra hold the classes stacked along the rows
         return correlate(w_spec, gain_spec, step_deg) / w_sum - ref_mean
-    return np.array([float(np.sum(weights * _rotate(gain_floored, t))) for t in thetas]) / w_sum - ref_mean
+    if masks is None:
+        return np.array([float(np.sum(weights * _rotate(gain_floored, t))) for t in thetas]) / w_sum - ref_mean
+    total = [sum(float(np.sum(weights * m * _rotate(g, t))) for m, g in zip(masks, gain_floored)) for t in thetas]
+    return np.array(total) / w_sum - ref_mean
 
 
-def score_option(option, patterns, goal_bands, prepared, thetas, step_deg, method="fft"):
+def score_option(option, patterns, goal_bands, prepared, thetas, step_deg, method="fft", foreground=None):
     """Best value over the option's states for every goal-band and bearing.
+
+    ``foreground`` is :func:`option_foreground` (``prepared`` must then come
+    from :func:`prepare_needs` with the site's foreground).
 
     Returns
     -------
@@ -325,8 +436,13 @@ def score_option(option, patterns, goal_bands, prepared, thetas, step_deg, metho
     best_state : ndarray of int, same shape
     """
     credit_cap = avoid_credit_cap_db(option.n_elements)
-    floored_gain = {k: floored(r.gain_dbi) for k, r in patterns.items()}
-    gain_specs = {k: spectrum(g) for k, g in floored_gain.items()} if method == "fft" else {}
+    if foreground:
+        floored_gain = {k: floored(g) for k, g in foreground["gains"].items()}
+        gain_specs = ({k: spectrum(g.reshape(-1, g.shape[-1])) for k, g in floored_gain.items()}
+                      if method == "fft" else {})
+    else:
+        floored_gain = {k: floored(r.gain_dbi) for k, r in patterns.items()}
+        gain_specs = {k: spectrum(g) for k, g in floored_gain.items()} if method == "fft" else {}
     values = np.full((len(goal_bands), thetas.size), np.nan)
     best_state = np.zeros((len(goal_bands), thetas.size), dtype=int)
     for i, (gb, pre) in enumerate(zip(goal_bands, prepared)):
@@ -336,11 +452,12 @@ def score_option(option, patterns, goal_bands, prepared, thetas, step_deg, metho
         for s in option.states:
             key = (gb.band_name, s.name)
             g, gs = floored_gain[key], gain_specs.get(key)
+            masks = pre.get("masks") if foreground else None
             v = _advantage(pre["weights"], pre["spec"], pre["open"], pre["ref"], g, gs, thetas, step_deg,
-                           method)
+                           method, masks)
             if pre["avoid_open"] > 0 and gb.avoid_weight > 0:
                 av = _advantage(pre["avoid_weights"], pre["avoid_spec"], pre["avoid_open"], pre["avoid_ref"],
-                                g, gs, thetas, step_deg, method)
+                                g, gs, thetas, step_deg, method, masks)
                 v = v - gb.avoid_weight * np.maximum(av, -credit_cap)
             per_state.append(v)
         stack = np.vstack(per_state)
@@ -482,17 +599,27 @@ def goal_rows(plan_option: OptionPlan, goal_bands, theta_index: int, ref: dict) 
             continue
         s_idx = int(plan_option.best_state[i, theta_index])
         s_name = plan_option.state_names[s_idx]
-        g = plan_option.patterns[(gb.band_name, s_name)].gain_dbi
-        if plan_option.reference_db is not None:  # receive: directivity, as it was scored
-            g = directivity_dbi(g)
-        g = _rotate(floored(g), theta)
+        fg = plan_option.foreground
+        if fg:  # blended per ground class (directivity already, for a receive option)
+            g = true_gain_dbi(plan_option, gb.band_name, s_name, theta, GAIN_FLOOR_DBI)
+        else:
+            g = plan_option.patterns[(gb.band_name, s_name)].gain_dbi
+            if plan_option.reference_db is not None:  # receive: directivity, as it was scored
+                g = directivity_dbi(g)
+            g = _rotate(floored(g), theta)
+
+        def ref_of(weights, band=gb.band_name):
+            if fg:
+                return _ref_mean_fg(weights, fg["masks"][band], fg["ref"][band])
+            return _ref_mean(weights, ref[band])
+
         mean = float(np.sum(w * g) / open_f)
-        ref_mean = _ref_mean(w, ref[gb.band_name])
+        ref_mean = ref_of(w)
         p10 = weighted_quantile(g, w, 0.10)
         avoid_adv = None
         if gb.avoid_needs is not None and gb.avoid_needs.weights.sum() > 0:
             aw = gb.avoid_needs.weights
-            avoid_adv = float(np.sum(aw * g) / aw.sum()) - _ref_mean(aw, ref[gb.band_name])
+            avoid_adv = float(np.sum(aw * g) / aw.sum()) - ref_of(aw)
         rows.append(GoalRow(gb.goal_name, gb.path, gb.band_name, s_name, mean, p10, mean - ref_mean,
                             float(plan_option.values_db[i, theta_index]), open_f, avoid_adv, ref_mean))
     return tuple(rows)

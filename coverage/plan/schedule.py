@@ -25,8 +25,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..grid import N_AZIMUTH
-from .planner import _rotate, avoid_credit_cap_db
-from .sweep import floored
+from .planner import avoid_credit_cap_db, true_gain_dbi
+from .sweep import GAIN_FLOOR_DBI, floored
 
 __all__ = ["GoalSlot", "ScheduleRow", "GoalTrack", "Schedule", "make_schedule"]
 
@@ -142,13 +142,16 @@ def make_schedule(site, plan) -> Schedule:
                 continue
             ref = floored(plan.reference_gain_dbi[band])
             ref_flat = np.repeat(ref, N_AZIMUTH)
+            if op.foreground:  # the vertical at the same site sees the same foreground, by true bearing
+                ref_flat = sum(m * floored(r)[:, None] for m, r in
+                               zip(op.foreground["masks"][band], op.foreground["ref"][band])).ravel()
             open_share = np.array([gb.needs.open_share_by_slot.ravel() for gb in members])   # (G, S)
             counted = open_share >= max(share_min, 1e-12)
             goal_w = np.array([gb.weight for gb in members])[:, None] * open_share * counted
             values = np.full((len(op.state_names), len(members), n_slots), np.nan)
             advs = np.full_like(values, np.nan)
             for si, s_name in enumerate(op.state_names):
-                gain = _rotate(floored(op.patterns[(band, s_name)].gain_dbi), theta).ravel()
+                gain = true_gain_dbi(op, band, s_name, theta, GAIN_FLOOR_DBI).ravel()  # foreground blended
                 for gi, gb in enumerate(members):
                     adv = _advantage(gb.needs, gain, ref_flat, n_slots)
                     v = adv

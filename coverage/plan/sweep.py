@@ -9,6 +9,19 @@ is, row by row, a circular cross-correlation of the need weights with the
 gain, so all 360 bearings come from one product of spectra per elevation
 row and one inverse FFT: IFFT(sum_e FFT(W_e) conj(FFT(G_e))).
 
+Ground beyond the array (``[[array.foreground]]``) depends on the true
+bearing, so it cannot ride on the rotating gain. It rides on the weights
+instead: with masks M_k[e, a] (the share of ground class k in the reflection
+toward true bearing a at elevation e; sum_k M_k = 1) and G_k the array-frame
+gain computed with class k in the far-field reflection, the blended gain is
+sum_k M_k[e, a] G_k[e, (a - theta) mod 360], and
+
+    S(theta) = sum_k sum_e sum_a (W M_k)[e, a] G_k[e, (a - theta) mod 360]
+             = sum_k correlate(W M_k, G_k)(theta),
+
+one correlation per distinct ground class: still exact, at K times the
+spectra (K = 1 + the number of distinct foreground classes).
+
 References
 ----------
 Convolution theorem for the discrete Fourier transform (cyclic

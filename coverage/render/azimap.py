@@ -304,6 +304,8 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
     ax.plot(bx, by, color=INK, linewidth=2.6, solid_capstyle="butt", zorder=5, gid="baseline")
     ax.plot([bx[1]], [by[1]], marker=(3, 0, -th), markersize=7, color=INK, zorder=5)
 
+    _foreground(ax, scene)
+
     # lobes
     for i, lobe in enumerate(scene.lobes):
         col = STATE_COLOURS[i % len(STATE_COLOURS)]
@@ -344,6 +346,29 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
              "the station: lines from the centre are great circles, rings are great-circle distance.  "
              f"lobeplan {version}", ha="center", va="center", fontsize=6.2, color="#5f666b")
     return fig
+
+
+FOREGROUND_COLOURS = ("#2f7fb8", "#b08a1f", "#4f8f4f", "#8a4f9a")
+FOREGROUND_KM = 1500.0  # drawing radius of a foreground wedge: a symbol at the station, not to scale
+
+
+def _foreground(ax, scene: BandScene) -> None:
+    """Foreground sectors as wedges at the station (gid ``foreground:<i>``), labelled."""
+    from matplotlib.patches import Polygon
+
+    for i, f in enumerate(scene.foreground):
+        span = (f.to_deg - f.from_deg) % 360.0 or 360.0
+        b = f.from_deg + np.linspace(0.0, span, max(int(span), 2) + 1)
+        x, y = _xy(b, np.full(b.size, FOREGROUND_KM))
+        col = FOREGROUND_COLOURS[i % len(FOREGROUND_COLOURS)]
+        pts = np.column_stack([np.append(x, 0.0), np.append(y, 0.0)])
+        ax.add_patch(Polygon(pts, closed=True, facecolor=col, alpha=0.25, edgecolor="none", zorder=4.6,
+                             gid=f"foreground:{i}"))
+        ax.add_patch(Polygon(pts, closed=True, facecolor="none", edgecolor=col, linewidth=1.0,
+                             linestyle=(0, (3, 2)), zorder=4.7))
+        lx, ly = _xy(f.from_deg + span / 2.0, FOREGROUND_KM * 0.6)
+        ax.text(lx, ly, f"{f.ground}\nfrom {f.from_m:g} m", fontsize=6.2, color=col, ha="center", va="center",
+                zorder=6, path_effects=_halo())
 
 
 def _label_point(proj, src, geom):

@@ -160,6 +160,32 @@ def _feature(geometry: dict, properties: dict) -> dict:
     return {"type": "Feature", "geometry": geometry, "properties": properties}
 
 
+FOREGROUND_DRAWN_M = 5000.0  # a sector's ground goes on; its polygon is drawn this far beyond from_m
+
+
+def foreground_features(site) -> list[dict]:
+    """Foreground sectors as wedge polygons on the ground (kind ``foreground``)."""
+    out = []
+    st = site.station
+    for f in site.array.foreground:
+        span = (f.to_deg - f.from_deg) % 360.0 or 360.0
+        b = f.from_deg + np.linspace(0.0, span, max(int(span), 2) + 1)
+        far = np.full(b.size, (f.from_m + FOREGROUND_DRAWN_M) / 1000.0)
+        lon_o, lat_o = _fwd(st.lon_deg, st.lat_deg, b, far)
+        if f.from_m > 0:
+            lon_i, lat_i = _fwd(st.lon_deg, st.lat_deg, b[::-1], np.full(b.size, f.from_m / 1000.0))
+        else:
+            lon_i, lat_i = np.array([st.lon_deg]), np.array([st.lat_deg])
+        lons = np.concatenate([lon_o, lon_i, lon_o[:1]])
+        lats = np.concatenate([lat_o, lat_i, lat_o[:1]])
+        # bearings run clockwise; RFC 7946 wants the outer ring counterclockwise
+        ring = [[round(float(x), _DIGITS), round(float(y), _DIGITS)] for x, y in zip(lons[::-1], lats[::-1])]
+        out.append(_feature({"type": "Polygon", "coordinates": [ring]}, {
+            "kind": "foreground", "ground": f.ground.name, "bearing_deg": [f.from_deg, f.to_deg],
+            "from_m": f.from_m, "drawn_to_m": f.from_m + FOREGROUND_DRAWN_M}))
+    return out
+
+
 def plan_geojson(site, plan) -> dict:
     """The FeatureCollection of every band's scene (strict JSON, no timestamp)."""
     features = []
@@ -194,8 +220,9 @@ def plan_geojson(site, plan) -> dict:
     for region, entry in avoid.items():
         features.append(_feature({"type": "MultiPolygon", "coordinates": _coords(entry["shade"].geometry)}, {
             "kind": "avoid", "region": region, "for_goals": list(dict.fromkeys(entry["goals"]))}))
+    features.extend(foreground_features(site))
     st = site.station
-    props = {"kind": "station", "name": st.name, "locator": st.locator}
+    props = {"kind": "station", "name": st.name, "locator": st.locator, "ground": site.array.ground.name}
     if first is not None:
         props.update({"option": first.option, "orientation_deg": _r(first.orientation_deg, 1),
                       "score_db": _r(first.score_db, 2)})

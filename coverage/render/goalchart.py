@@ -114,7 +114,27 @@ def _goal_label(goal: dict) -> str:
     return goal["goal"] + (" (long)" if goal["path"] == "long" else "")
 
 
-def band_figure(rows: list[dict], station_name: str = ""):
+FOREGROUND_COLOURS = ("#2f7fb8", "#b08a1f", "#4f8f4f", "#8a4f9a")
+
+
+def _foreground_strip(ax, foreground, y_top: float) -> None:
+    """Foreground sectors as a labelled strip along the bottom of a bearing x takeoff chart."""
+    from matplotlib.patches import Rectangle
+
+    h = 0.035 * y_top
+    for i, f in enumerate(foreground):
+        lo, hi = f["bearing_deg"]
+        col = FOREGROUND_COLOURS[i % len(FOREGROUND_COLOURS)]
+        for a, b in goal_spans(lo, hi if hi != lo else lo + 360.0):
+            ax.add_patch(Rectangle((a, 0.0), b - a, h, facecolor=col, edgecolor="white", linewidth=0.6,
+                                   alpha=0.85, zorder=4.2, gid=f"foreground:{i}"))
+        spans = goal_spans(lo, hi)
+        a, b = max(spans, key=lambda p: p[1] - p[0])
+        ax.text(0.5 * (a + b), 1.15 * h, f"{f['ground']} from {f['from_m']:g} m", ha="center", va="bottom",
+                fontsize=6.0, color=col, zorder=5, path_effects=_halo(), clip_on=True)
+
+
+def band_figure(rows: list[dict], station_name: str = "", foreground=()):
     """The figure of one band and one option (not saved).
 
     Parameters
@@ -123,6 +143,9 @@ def band_figure(rows: list[dict], station_name: str = ""):
         The ``patterns`` rows of ``lobeplan pattern`` for one band and one
         option, one per state, in the site file's order.
     station_name : str
+    foreground : sequence of dict
+        The ``foreground`` sectors of the pattern result, drawn as a strip
+        along the bottom of every chart.
 
     Returns
     -------
@@ -189,6 +212,7 @@ def band_figure(rows: list[dict], station_name: str = ""):
                 ax.plot([x, x], [el["p90"], y], color=INK, linewidth=0.5, zorder=4.5)
             ax.text(x, y, text, ha="center", va="bottom", fontsize=_BOX_TEXT,
                     color=INK, zorder=5, path_effects=_halo(), clip_on=True)
+        _foreground_strip(ax, foreground, y_top)
         ax.set_xlim(0.0, 360.0)
         ax.set_ylim(0.0, y_top)
         ax.set_xticks(range(0, 361, 45))
@@ -280,15 +304,19 @@ def band_figure(rows: list[dict], station_name: str = ""):
              f"percentile), with that state's {what} toward it, edge -6 (ember) to +6 dB (spruce). "
              f"Contours at 3 dB (solid) and 10 dB (dashed) under each state's peak.\nDotted: the band's key "
              f"takeoff angle, the median of every goal's needed takeoff angles on the band (weighted as the plan "
-             f"weighs them); the takeoff cut follows each state's strongest bearing there.", fontsize=6.8,
+             f"weighs them); the takeoff cut follows each state's strongest bearing there."
+             + ("\nStrip along the bottom: foreground sectors (ground beyond the array by true bearing, from "
+                "the distance given); the gains blend the grounds each ray's first Fresnel zone falls on."
+                if len(foreground) else ""), fontsize=6.8,
              color=INK, va="bottom", linespacing=1.4)
     return fig
 
 
-def draw_band_figure(rows: list[dict], path: str | Path, station_name: str = "", dpi: int = 110) -> Path:
+def draw_band_figure(rows: list[dict], path: str | Path, station_name: str = "", dpi: int = 110,
+                     foreground=()) -> Path:
     """Draw :func:`band_figure` and save it atomically (format from the suffix)."""
     plt = _pyplot()
-    fig = band_figure(rows, station_name)
+    fig = band_figure(rows, station_name, foreground)
     try:
         return atomic_savefig(fig, path, dpi=dpi)
     finally:

@@ -86,11 +86,18 @@ def elevation_figure(site, plan):
         for i, s_name in enumerate(op.state_names):
             g = op.patterns[(band, s_name)].gain_dbi
             el = int(round(takeoff)) if takeoff is not None else int(np.unravel_index(np.argmax(g), g.shape)[0])
-            row = true_bearing_row(g, el, theta)
-            bearing = int(np.argmax(row))
-            frame_az = (bearing - theta) % 360.0
-            cut = np.array([np.interp(frame_az, np.arange(360.0), g[e], period=360.0)
-                            for e in range(ELEVATION_DEG.size)])
+            if op.foreground:  # the blended grid is already over true bearings
+                from ..plan.planner import true_gain_dbi
+
+                tg = true_gain_dbi(op, band, s_name, theta)
+                bearing = int(np.argmax(tg[el]))
+                cut = tg[:, bearing]
+            else:
+                row = true_bearing_row(g, el, theta)
+                bearing = int(np.argmax(row))
+                frame_az = (bearing - theta) % 360.0
+                cut = np.array([np.interp(frame_az, np.arange(360.0), g[e], period=360.0)
+                                for e in range(ELEVATION_DEG.size)])
             peak = max(peak, float(cut.max()))
             ax.plot(ELEVATION_DEG, cut, color=STATE_COLOURS[i % len(STATE_COLOURS)], linewidth=1.6,
                     label=f"{s_name} toward {bearing}°", gid=f"cut:{band}:{s_name}")

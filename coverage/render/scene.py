@@ -14,7 +14,7 @@ import numpy as np
 
 from ..grid import AZIMUTH_DEG, ELEVATION_DEG, to_true_bearing
 
-__all__ = ["Lobe", "GoalShade", "AvoidShade", "BandScene", "band_scene", "chosen_option", "propagation_text",
+__all__ = ["Lobe", "GoalShade", "AvoidShade", "ForegroundShade", "BandScene", "band_scene", "chosen_option", "propagation_text",
            "key_takeoff_deg", "true_bearing_row", "lobe_radius_km", "slug"]
 
 
@@ -58,6 +58,17 @@ class AvoidShade:
 
 
 @dataclass(frozen=True)
+class ForegroundShade:
+    """A foreground sector: true bearings clockwise from ``from_deg`` to ``to_deg``,
+    ground ``ground`` beginning ``from_m`` from the array."""
+
+    from_deg: float
+    to_deg: float
+    from_m: float
+    ground: str
+
+
+@dataclass(frozen=True)
 class BandScene:
     band: str
     station_name: str
@@ -80,6 +91,7 @@ class BandScene:
     ring_step_km: float
     propagation_text: str = ""
     closed_share: float = 0.0
+    foreground: tuple[ForegroundShade, ...] = ()
 
     @property
     def lobe_top_dbi(self) -> float:
@@ -151,7 +163,7 @@ def band_scene(site, plan, band_name: str) -> BandScene:
         first = op.patterns[(band_name, op.state_names[0])].gain_dbi
         takeoff = float(ELEVATION_DEG[np.unravel_index(int(np.argmax(first)), first.shape)[0]])
 
-    rows_g = [true_bearing_row(op.patterns[(band_name, s)].gain_dbi, takeoff, theta) for s in op.state_names]
+    rows_g = [_state_row(op, band_name, s, takeoff, theta) for s in op.state_names]
     top = max(float(r.max()) for r in rows_g)
     lobes = tuple(Lobe(s, r, lobe_radius_km(r, top, site.map.lobe_floor_db, site.map.lobe_peak_km),
                        float(r.max()), float(AZIMUTH_DEG[int(np.argmax(r))]))
@@ -199,7 +211,9 @@ def band_scene(site, plan, band_name: str) -> BandScene:
         model=site.propagation.model, takeoff_deg=float(takeoff), takeoff_from_needs=from_needs,
         lobes=lobes, goals=tuple(goals), avoid=avoids, lobe_peak_km=float(site.map.lobe_peak_km),
         lobe_floor_db=float(site.map.lobe_floor_db), ring_step_km=float(site.map.ring_step_km),
-        propagation_text=propagation_text(site), closed_share=float(site.propagation.closed_share))
+        propagation_text=propagation_text(site), closed_share=float(site.propagation.closed_share),
+        foreground=tuple(ForegroundShade(f.from_deg, f.to_deg, f.from_m, f.ground.name)
+                         for f in site.array.foreground))
 
 
 _MONTH_NAMES = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
@@ -227,3 +241,12 @@ def propagation_text(site) -> str:
     values, name = (flux, "F10.7") if flux else (spots, "R12")
     solar = f"{name} {min(values):g}" if min(values) == max(values) else f"{name} {min(values):g}-{max(values):g}"
     return f"propagation model: climatology, {when}, {solar}, {hours}"
+
+
+def _state_row(op, band_name: str, state: str, takeoff_deg: float, theta_deg: float) -> np.ndarray:
+    """A state's gain over true bearings at the takeoff angle, the foreground blended."""
+    if op.foreground:
+        from ..plan.planner import true_gain_dbi
+
+        return true_gain_dbi(op, band_name, state, theta_deg)[int(round(takeoff_deg))]
+    return true_bearing_row(op.patterns[(band_name, state)].gain_dbi, takeoff_deg, theta_deg)

@@ -7,15 +7,18 @@ from pathlib import Path
 
 import numpy as np
 
+from ..antenna.foreground import blend_true_bearing, class_gains_dbi, foreground_masks, ground_classes
 from ..antenna.pattern import GAIN_FLOOR_DBI, array_pattern, lobe_bearings_deg, pattern_figures, vertical_gain_dbi
 from ..antenna.receive import directivity_dbi, rdf_db, sky_mean_gain_dbi
 from ..errors import UsageError
 from ..grid import AZIMUTH_DEG, ELEVATION_DEG, to_true_bearing
 from ..plan.sweep import floored
 from ..render.scene import key_takeoff_deg
+from .ground import foreground_json, ground_line, ground_summary
 
 __all__ = ["add_arguments", "build", "format_text", "write_files",
-           "select_bands", "select_states", "to_true_bearing", "current_rows", "pair", "goal_cells", "NOTES"]
+           "select_bands", "select_states", "to_true_bearing", "current_rows", "pair", "goal_cells", "NOTES",
+           "foreground_json", "true_pattern_dbi"]
 
 
 def add_arguments(parser) -> None:
@@ -119,14 +122,35 @@ def goal_cells(goal_bands, arcs, band_name, true_gain, ref_gain, sky_mean_dbi) -
                 "open_fraction": round(float(n.open_fraction), 4), "mean_gain_dbi": None,
                 "advantage_db": None, "directivity_db": None, "directivity_advantage_db": None}
         if float(w.sum()) > 0:
-            ref_grid = np.broadcast_to(np.asarray(ref_gain)[:, None], w.shape)
+            ref_grid = _on_grid(ref_gain, w.shape)
             gain = _mean(w, true_gain)
             d = _mean(w, true_gain - sky_mean_dbi)
             cell.update(mean_gain_dbi=_r(gain), advantage_db=_r(gain - _mean(w, ref_grid)),
                         directivity_db=_r(d),
-                        directivity_advantage_db=_r(d - _mean(w, np.broadcast_to(ref_d[:, None], w.shape))))
+                        directivity_advantage_db=_r(d - _mean(w, _on_grid(ref_d, w.shape))))
         out.append(cell)
     return out
+
+
+def true_pattern_dbi(spec, option, res, orientation_deg: float) -> np.ndarray:
+    """A result's gain over true bearings, the foreground blended per class (dBi)."""
+    if not spec.foreground:
+        return np.maximum(to_true_bearing(res.gain_dbi, orientation_deg), GAIN_FLOOR_DBI)
+    return blend_true_bearing(class_gains_dbi(spec, option, res), foreground_masks(spec, res.freq_hz),
+                              orientation_deg)
+
+
+def _blended_reference(spec, freq_hz: float) -> np.ndarray:
+    """One vertical over true bearings with the foreground, (91, 360) dBi."""
+    masks = foreground_masks(spec, freq_hz)
+    ref_k = [vertical_gain_dbi(spec, freq_hz, g) for g in ground_classes(spec)]
+    return sum(m * r[:, None] for m, r in zip(masks, ref_k))
+
+
+def _on_grid(ref, shape):
+    """A reference over elevation (91,) or already over the grid (91, 360), as the grid."""
+    ref = np.asarray(ref, dtype=float)
+    return np.broadcast_to(ref if ref.ndim == 2 else ref[:, None], shape)
 
 
 def build(site, args=None) -> dict:
@@ -140,13 +164,20 @@ def build(site, args=None) -> dict:
     for band in bands:
         ref = plan.reference_gain_dbi.get(band.name)
         ref = vertical_gain_dbi(site.array, band.freq_hz) if ref is None else ref
+        if site.array.foreground:  # the vertical stands at the same site: it sees the same foreground
+            ref = _blended_reference(site.array, band.freq_hz)
         takeoff = key_takeoff_deg(plan.goal_bands, band.name)
         for option, state in pairs:
             orient, orient_from = _orientation(site, plan, option)
             res = array_pattern(site.array, option, state, band.freq_hz)
+            true_gain = true_pattern_dbi(site.array, option, res, orient)
+            grid = res.gain_dbi
             fig = pattern_figures(res.gain_dbi)
-            true_gain = np.maximum(to_true_bearing(res.gain_dbi, orient), GAIN_FLOOR_DBI)
-            sky = sky_mean_gain_dbi(res.gain_dbi)
+            if site.array.foreground:  # figures of the blended grid, which is over true bearings
+                grid = true_gain
+                fig = pattern_figures(true_gain)
+                fig["peak_azimuth_deg"] = (fig["peak_azimuth_deg"] - orient) % 360.0
+            sky = sky_mean_gain_dbi(grid)
             out.append({
                 "band": band.name,
                 "option": option.name,
@@ -175,13 +206,19 @@ def build(site, args=None) -> dict:
                 "lobes": [{"bearing_deg": round(b, 1), "gain_dbi": round(g, 2)}
                           for b, g in lobe_bearings_deg(true_gain[peak_el])],
                 "sky_mean_gain_dbi": round(sky, 2),
-                "rdf_db": round(rdf_db(res.gain_dbi, rdf_el), 2),
+                "rdf_db": round(rdf_db(grid, rdf_el), 2),
                 "rdf_elevation_deg": rdf_el,
                 "goals": goal_cells(plan.goal_bands, arcs, band.name, true_gain, ref, sky),
             })
     for row in out:
         row.pop("_option")
-    return {"patterns": out, "notes": list(NOTES)}
+    notes = list(NOTES)
+    for f in site.array.foreground:
+        notes.append(f"foreground: {f.ground.name} from {f.from_m:g} m toward {f.from_deg:g}-{f.to_deg:g} deg "
+                     "true; each ray's gain blends the grounds its first Fresnel zone falls on (the vertical's "
+                     "reference too).")
+    return {"patterns": out, "notes": notes, "foreground": foreground_json(site.array),
+            "ground_system": ground_summary(site)}
 
 
 NOTES = (
@@ -278,6 +315,8 @@ def format_text(result: dict) -> str:
     if result["patterns"]:
         rdf = result["patterns"][0]["rdf_elevation_deg"]
         lines.append(f"RDF at {rdf:g}° takeoff (rdf_elevation_deg).")
+        if "ground_system" in result:
+            lines.append(textwrap.fill(ground_line(result["ground_system"]), 100))
         lines += [textwrap.fill(n, 100, initial_indent="- ", subsequent_indent="  ")
                   for n in result.get("notes", NOTES)]
     return "\n".join(lines) + "\n"
@@ -318,7 +357,8 @@ def write_files(site, args, result, out_dir) -> list[Path]:
     seen: set = set()
     for block in _blocks(result["patterns"]):
         base = f"pattern-{_slug(block[0]['band'])}-{_slug(block[0]['option'])}"
-        written.append(draw_band_figure(block, out / f"{_unique(base, seen)}.png", site.station.name))
+        written.append(draw_band_figure(block, out / f"{_unique(base, seen)}.png", site.station.name,
+                                        foreground=result.get("foreground", ())))
         for p in block:
             name = _unique(f"{base}-{_slug(p['state'])}", seen)
             written.append(atomic_write_text(out / f"{name}.csv", grid_csv(p)))

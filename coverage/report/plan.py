@@ -9,6 +9,7 @@ from pathlib import Path
 
 from ..safety import CAUTIONS
 from ..site import height_caveats
+from .ground import ground_line, ground_summary
 
 __all__ = ["add_arguments", "check_arguments", "build", "build_from_plan", "format_text", "write_files", "run_plan",
            "score_definition"]
@@ -96,6 +97,7 @@ def build_from_plan(site, plan) -> dict:
         "schedule_options": schedule_options(plan),
         "schedule": schedule_rows(schedule_of(site, plan)),
         "caveats": list(plan.caveats) + list(height_caveats(site)),
+        "ground_system": ground_summary(site),
         "cautions": list(CAUTIONS),
         "goal_paths": goal_path_rows(site),   # bearings and distances the plan page shows
     }
@@ -111,7 +113,10 @@ def _f(x, spec: str = "+6.2f", none: str = "—") -> str:
 
 def format_text(result: dict) -> str:
     st = result["station"]
-    out = [f"Plan for {st['name']} ({st['locator']}), propagation model: {result['model']}", ""]
+    out = [f"Plan for {st['name']} ({st['locator']}), propagation model: {result['model']}"]
+    if "ground_system" in result:
+        out.append(ground_line(result["ground_system"]))
+    out.append("")
     avoid = any(g.get("avoid_advantage_db") is not None for e in result["ranking"] for g in e["goals"])
     out.append("Best baseline bearings (score in dB, defined below)")
     out.append(f"  {'#':>2}  {'option':<24} {'bearing':>8} {'score':>7}")
