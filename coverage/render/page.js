@@ -428,7 +428,7 @@
     var cw = 18, ch = 14, left = 78, top = 16, gap = 14;
     var height = top + bands.length * (ms.length * ch + gap + 12) + 8;
     var width = left + hs.length * cw + 8;
-    var s = sv("svg", { viewBox: "0 0 " + width + " " + height, width: Math.round(width * 1.45), style: "max-width:100%;height:auto", role: "img", id: "schedule-svg",
+    var s = sv("svg", { viewBox: "0 0 " + width + " " + height, width: Math.round(width * 1.45), style: "height:auto;display:block", role: "img", id: "schedule-svg",
                         "aria-label": "schedule of " + opt + ": the state the schedule picks for each band, month and hour; the switch card below says the same in words" });
     hs.forEach(function (h, j) {
       if (j % 3 === 0) { s.appendChild(sv("text", { x: left + j * cw + cw / 2, y: 11, "font-size": 9, "text-anchor": "middle", fill: C.ink }, hh(h))); }
