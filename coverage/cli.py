@@ -38,7 +38,7 @@ __all__ = ["main"]
 # imported, so a quick verb does not pay for the maps' or the optimiser's imports.
 VERBS = {
     "demo": ("lobeplan.report.demo", "run the whole job on the shipped demo site (an invented scenario); "
-             "writes to ./maps"),
+             "writes to ./lobeplan-demo"),
     "plan": ("lobeplan.report.plan", "rank baseline bearings and spacings against the goals; "
              "per-goal switch states, maps and results"),
     "schedule": ("lobeplan.report.schedule", "which switch state to use on each band, month and UT hour; "
@@ -53,7 +53,12 @@ VERBS = {
     "map": ("lobeplan.report.map", "azimuthal-equidistant map per band with the lobes and goals"),
     "exposure": ("lobeplan.report.exposure", "RF exposure distances (far-field estimate, US limits) with "
                  "the cautions that go with them"),
+    "regions": ("lobeplan.report.regions", "country and continent names, codes and areas that match a text; "
+                "with --site, their bearings and distances"),
 }
+
+# verbs that take no site file as their first argument
+_NO_SITE = ("demo", "regions")
 
 
 class _Parser(argparse.ArgumentParser):
@@ -79,7 +84,7 @@ def _build_parser(verb: str | None) -> tuple[argparse.ArgumentParser, object | N
     chosen = None
     for name, (module, help_text) in VERBS.items():
         p = sub.add_parser(name, help=help_text, description=help_text)
-        if name != "demo":
+        if name not in _NO_SITE:
             p.add_argument("site", metavar="SITE.toml", help="the site file")
         p.add_argument("--json", action="store_true", help="machine-readable result on stdout, nothing else there")
         p.add_argument("--out", metavar="DIR", default=None, help="write result files into DIR")
@@ -141,7 +146,7 @@ def _run(args: argparse.Namespace, mod: object, state: dict) -> int:
         out_dir = mod.default_out(args)
     if out_dir is not None:
         check_out_dir(out_dir)  # refuse before any work is done, create nothing yet
-    site = load(site_path, getattr(mod, "SITE_SECTIONS", SECTIONS))
+    site = None if site_path is None else load(site_path, getattr(mod, "SITE_SECTIONS", SECTIONS))
     result = mod.build(site, args)
     text = dumps_json(result) if args.json else mod.format_text(result)
     done = None

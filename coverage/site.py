@@ -23,7 +23,8 @@ from .geo.station import Station
 from .plan.model import Orientation
 from .propagation.model import PropagationSettings
 
-__all__ = ["Band", "Goal", "Site", "load", "loads", "MapSettings", "height_caveats", "SECTIONS"]
+__all__ = ["Band", "Goal", "Site", "load", "loads", "MapSettings", "height_caveats", "SECTIONS", "mesh_caveats",
+           "element_caveats", "SHORT_WAVELENGTHS"]
 
 _REQUIRED = object()
 LAYOUTS = ("single", "pair", "line", "square", "custom")
@@ -291,11 +292,14 @@ _TOP = ("station", "array", "feed", "band", "goal", "propagation", "map")
 _STATION = ("name", "locator", "lat", "lon")
 _ARRAY = ("height_m", "radius_m", "layout", "spacing_m", "elements", "positions_m", "orientation_deg",
           "orientation_step_deg", "allowed_orientation_deg", "ground", "ground_loss_ohm", "state", "option",
-          "use", "rdf_elevation_deg", "radials", "foreground")
+          "use", "rdf_elevation_deg", "radials", "foreground", "design_band", "forced_bands", "junction_m",
+          "line_slack_m")
 _RADIALS = ("count", "length_m", "depth_m", "height_m", "wire_diameter_mm")
 _FOREGROUND = ("bearing_deg", "from_m", "ground")
-_OPTION = ("name", "layout", "spacing_m", "elements", "positions_m", "state", "use")
-_STATE = ("name", "phase_deg", "amplitude", "line_m")
+_OPTION = ("name", "layout", "spacing_m", "elements", "positions_m", "state", "use", "design_band", "forced_bands",
+           "junction_m")
+_STATE = ("name", "phase_deg", "amplitude", "line_m", "design_band", "forced_bands")
+_NETWORK_KEYS = ("design_band", "forced_bands")
 _FEED = ("z0_ohm", "velocity_factor", "loss_db_per_100m_at_10mhz")
 _BAND = ("name", "freq_mhz", "edges_mhz")
 _GOAL = ("name", "region", "weight", "bands", "path", "clip", "avoid", "avoid_weight")
@@ -340,6 +344,8 @@ def loads(text: str, file: str = "<site>", base_dir: str = ".",
     _check_band_files(r, bands)
     if array is not None and "band" in doc:
         _check_receive_only(r, array, doc["band"])
+    if array is not None and bands:
+        array = _resolve_networks(r, doc["array"], array, bands)
     goals = _goals(r, doc["goal"], bands)
     if array is not None:
         _check_height(r, array, bands)
@@ -411,6 +417,141 @@ def height_caveats(site: "Site") -> tuple[str, ...]:
         elif h > 0.75 or h < 0.1:
             out.append(f"On {b.name} the elements are {h:.2f} wavelength tall, outside the 0.1-0.75 wavelength "
                        "range the element model is checked over.")
+    return tuple(out)
+
+
+def _band_ref(r: _Reader, v: Any, key: str, band_names: tuple[str, ...]) -> str:
+    if not isinstance(v, str) or v not in band_names:
+        close = difflib.get_close_matches(v, band_names, n=1, cutoff=0.5) if isinstance(v, str) else []
+        hint = f" (did you mean {close[0]!r}?)" if close else ""
+        raise r.fail(key, f"{_show(v)} is not a band of this site{hint}; the bands are "
+                     + ", ".join(repr(n) for n in band_names))
+    return v
+
+
+def _network_keys(r: _Reader, t: dict, key: str, band_names: tuple[str, ...], inherited: dict) -> dict:
+    """design_band and forced_bands of one level (array, option, state), over the inherited ones."""
+    out = dict(inherited)
+    if "design_band" in t:
+        out["design_band"] = _band_ref(r, t["design_band"], _join(key, "design_band"), band_names)
+    if "forced_bands" in t:
+        v = t["forced_bands"]
+        k = _join(key, "forced_bands")
+        if isinstance(v, str):
+            v = [v]
+        if not isinstance(v, list):
+            raise r.fail(k, f"{_show(v)} is not a list of band names")
+        out["forced_bands"] = tuple(dict.fromkeys(_band_ref(r, b, f"{k}[{j + 1}]", band_names)
+                                                  for j, b in enumerate(v)))
+    return out
+
+
+def default_design_band(height_m: float, bands) -> "Band":
+    """The band on which the elements are nearest a quarter wave tall."""
+    return min(bands, key=lambda b: abs(height_m * b.freq_hz / 299_792_458.0 - 0.25))
+
+
+def _resolve_networks(r: _Reader, t: dict, array: ArraySpec, bands: tuple[Band, ...]) -> ArraySpec:
+    """Put design and forced bands (in Hz) on every forced state; check that
+    fed lines reach their elements from the junction."""
+    from dataclasses import replace
+
+    names = tuple(b.name for b in bands)
+    freq = {b.name: b.freq_hz for b in bands}
+    top = _network_keys(r, t, "array", names, {"design_band": default_design_band(array.height_m, bands).name,
+                                                "forced_bands": ()})
+    blocks = r.tables(t["option"], "array.option") if "option" in t else None
+    options = []
+    for oi, option in enumerate(array.options):
+        if blocks is not None:
+            ot, okey = blocks[oi], f"array.option[{oi + 1}]"
+        else:
+            ot, okey = {}, "array"
+        level = _network_keys(r, ot, okey, names, top)
+        raw_states = ot.get("state", t.get("state", [])) if blocks is not None else t.get("state", [])
+        raw_states = raw_states if isinstance(raw_states, list) else [raw_states]
+        skey = _join(okey if blocks is not None else "array", "state")
+        states = []
+        for si, state in enumerate(option.states):
+            st = raw_states[si] if si < len(raw_states) else {}
+            k = f"{skey}[{si + 1}]"
+            if state.is_fed:
+                for name in _NETWORK_KEYS:
+                    if name in st:
+                        raise r.fail(_join(k, name), "does not apply to a line_m state (its lines are the "
+                                     "network); give it to phase_deg states")
+                _check_reach(r, option, state, k)
+                states.append(state)
+                continue
+            own = _network_keys(r, st, k, names, level)   # checked for one vertical too
+            if option.n_elements == 1:   # no network: its base current is the state
+                states.append(state)
+                continue
+            states.append(replace(state, design_band=own["design_band"],
+                                  design_freq_hz=freq[own["design_band"]],
+                                  forced_freqs_hz=tuple(freq[b] for b in own["forced_bands"])))
+        options.append(replace(option, states=tuple(states)))
+    return replace(array, options=tuple(options))
+
+
+def _check_reach(r: _Reader, option: ArrayOption, state: State, key: str) -> None:
+    jx, jy = option.junction_point_m
+    for i, ((x, y), length) in enumerate(zip(option.positions_m, state.line_m)):
+        run = math.hypot(x - jx, y - jy)
+        if length < run - 1e-9:
+            raise r.fail(f"{key}.line_m[{i + 1}]", f"{length:g} m cannot reach element {i + 1}, which stands "
+                         f"{run:.2f} m from the junction; expected at least {run:.2f} m (or move junction_m)")
+
+
+def _junction(r: _Reader, t: dict, key: str) -> tuple[float, float] | None:
+    if "junction_m" not in t:
+        return None
+    x, y = r.number_list(t, "junction_m", key, length=2, why="[along, across] in metres", lo=-1000.0, hi=1000.0,
+                         what="metres from element 1, -1000 to 1000")
+    return (x, y)
+
+
+SHORT_WAVELENGTHS = 0.15   # under this an element is "short": a base coil is the usual remedy
+
+
+def element_caveats(site: "Site") -> tuple[str, ...]:
+    """Short elements: the base-loading coil that resonates one, and its loss at a stated Q."""
+    from .antenna.feed import COIL_Q, loading_coil
+    from .antenna.mom import solve_elements
+    from .antenna.radials import ground_loss
+
+    out = []
+    a = site.array
+    for b in site.bands:
+        h = a.height_m * b.freq_hz / 299_792_458.0
+        if h >= SHORT_WAVELENGTHS:
+            continue
+        z = complex(solve_elements(a.height_m, a.radius_m, ((0.0, 0.0),), b.freq_hz).impedance_ohm[0, 0])
+        base_loss = float(ground_loss(a, a.options[0], b.freq_hz).ohm[0])
+        coil = loading_coil(z, base_loss, b.freq_hz)
+        text = (f"On {b.name} the elements are {h:.2f} wavelength tall (short): each base is about "
+                f"{z.real:.1f}{z.imag:+.0f}j ohm")
+        if coil is not None:
+            text += (f"; a base coil of {coil.inductance_uh:.1f} uH resonates it, and at a coil Q of {COIL_Q:g} "
+                     f"it adds {coil.loss_ohm:.1f} ohm, so with the {base_loss:.2g} ohm ground loss only "
+                     f"{100 * coil.efficiency:.0f} % of the power is radiated (before ground losses in the far "
+                     "field). A match straight to the bare base would need extreme parts.")
+        out.append(text)
+    return tuple(out)
+
+
+def mesh_caveats(site: "Site") -> tuple[str, ...]:
+    """Bands where the element mesh could not converge Z11 to 1 % by doubling."""
+    from .antenna.mom import MESH_TOLERANCE, converged_mesh
+
+    out = []
+    for b in site.bands:
+        m = converged_mesh(site.array.height_m, site.array.radius_m, b.freq_hz)
+        if not m.converged:
+            out.append(f"On {b.name} the base impedance still moves {100 * m.change:.1f} % per doubling of the "
+                       f"segments at the finest mesh the thin-wire model allows ({m.n_node} segments, four radii "
+                       f"each; wanted under {100 * MESH_TOLERANCE:g} %): the feed gap's capacitance matters here, "
+                       "so the real base insulator's few pF shift the match and the as-built currents.")
     return tuple(out)
 
 
@@ -616,7 +757,8 @@ def _array(r: _Reader, t: Any, feed_t: Any) -> tuple[ArraySpec, Orientation]:
             states = _option_states(r, ot, k, len(pos), layout)
             name = r.string(ot, "name", k, default=_option_name(layout, sp, len(pos)))
             use = r.string(ot, "use", k, default="transmit", choices=USES)
-            options.append(ArrayOption(name, layout, sp, pos, states, use))
+            junction = _junction(r, ot, k) or _junction(r, t, key)
+            options.append(ArrayOption(name, layout, sp, pos, states, use, junction_m=junction))
     else:
         layout = r.string(t, "layout", key, default="pair", choices=LAYOUTS)
         spacings: tuple[float | None, ...] = (None,) if layout in ("single", "custom") else _spacings(r, t, key)
@@ -624,7 +766,8 @@ def _array(r: _Reader, t: Any, feed_t: Any) -> tuple[ArraySpec, Orientation]:
         for sp in spacings:
             pos = _positions(r, t, key, layout, sp, radius)
             states = _option_states(r, t, key, len(pos), layout)
-            options.append(ArrayOption(_option_name(layout, sp, len(pos)), layout, sp, pos, states, use))
+            options.append(ArrayOption(_option_name(layout, sp, len(pos)), layout, sp, pos, states, use,
+                                       junction_m=_junction(r, t, key)))
     names = [o.name for o in options]
     if len(set(names)) != len(names):
         raise r.fail("array.option", "two options share a name; option names must differ")
@@ -632,8 +775,10 @@ def _array(r: _Reader, t: Any, feed_t: Any) -> tuple[ArraySpec, Orientation]:
     orientation = _orientation(r, t)
     rdf_el = r.number(t, "rdf_elevation_deg", key, default=20.0, lo=1.0, hi=89.0,
                       what="a takeoff angle from 1 to 89 deg for the receiving directivity factor")
+    slack = r.number(t, "line_slack_m", key, default=1.0, lo=0.0, hi=100.0,
+                     what="a slack in metres, 0 to 100, added to every designed line's run")
     return ArraySpec(height, radius, ground, loss, feed, tuple(options), rdf_el, radials=radials,
-                     foreground=foreground), orientation
+                     foreground=foreground, line_slack_m=slack), orientation
 
 
 def _radials(r: _Reader, t: Any) -> Radials:

@@ -60,9 +60,14 @@ def test_mutual_impedance_near_induced_emf(d_wl):
 def test_short_monopole_resistance_near_general_emf_form(h_wl):
     # Balanis sec. 4.5 general-length induced-EMF radiation resistance (moved
     # to the feed point); for short elements the sinusoidal current is a good
-    # assumption, so the moment method should agree within 5 %.
+    # assumption. At 0.1 lambda the sinusoidal and the triangular current
+    # (short dipole, Balanis sec. 4.3: Rr = 20 pi^2 (l/lambda)^2, halved for
+    # the monopole: 40 pi^2 (h/lambda)^2) already differ by 5 %, and the
+    # converged mesh lands on the triangular value, so allow 7 %.
     z = solve_elements(h_wl * LAM, A_THIN, [(0.0, 0.0)], F).impedance_ohm[0, 0]
-    assert z.real == pytest.approx(emf_monopole_input_resistance_ohm(h_wl * LAM, F), rel=0.05)
+    assert z.real == pytest.approx(emf_monopole_input_resistance_ohm(h_wl * LAM, F), rel=0.07)
+    if h_wl <= 0.1:
+        assert z.real == pytest.approx(40 * math.pi ** 2 * h_wl ** 2, rel=0.02)
     assert z.imag < 0  # shorter than resonance: capacitive (common practice)
 
 
@@ -136,3 +141,36 @@ def test_base_current_and_current_shape():
 def test_bad_geometry_rejected():
     with pytest.raises(ValueError):
         solve_elements(1.0, 0.2, [(0.0, 0.0)], F)
+
+
+def test_converged_mesh_meets_its_own_criterion_and_a_fine_reference():
+    # Convergence by doubling (common practice for moment methods): the chosen
+    # mesh of a thin quarter-wave monopole must change Z11 by under 1 % on one
+    # more doubling, and lie within 1 % of a reference solved with 8 times the
+    # segments (the drift is about logarithmic, ~0.3 % per doubling here, so
+    # three more doublings stay inside the 1 % the mesh promises).
+    from lobeplan.antenna.mom import MESH_TOLERANCE, converged_mesh
+
+    h = 0.25 * LAM
+    mesh = converged_mesh(h, A_THIN, F)
+    assert mesh.converged and mesh.change < MESH_TOLERANCE
+    z = solve_elements(h, A_THIN, [(0.0, 0.0)], F).impedance_ohm[0, 0]
+    z2 = solve_elements(h, A_THIN, [(0.0, 0.0)], F, n_node=2 * mesh.n_node).impedance_ohm[0, 0]
+    ref = solve_elements(h, A_THIN, [(0.0, 0.0)], F, n_node=8 * mesh.n_node).impedance_ohm[0, 0]
+    assert abs(z2 - z) / abs(z2) < MESH_TOLERANCE
+    assert abs(ref - z) / abs(ref) < MESH_TOLERANCE
+    # and the default mesh is the converged one, not the old 40 per wavelength
+    assert solve_elements(h, A_THIN, [(0.0, 0.0)], F).node_z_m.size == mesh.n_node
+
+
+def test_mesh_near_antiresonance_is_flagged_not_claimed():
+    # 0.48 wavelength with 2 cm tubing (the demo's 20 m band): the delta-gap
+    # capacitance keeps Z11 moving by several % per doubling down to the
+    # thin-wire limit (segments four radii long), so the mesh must say it did
+    # not converge rather than pretend.
+    from lobeplan.antenna.mom import converged_mesh
+
+    f = 14.1e6
+    mesh = converged_mesh(10.3, 0.02, f)
+    assert mesh.n_node == mesh.limit_node == int(10.3 / 0.08)
+    assert not mesh.converged and mesh.change > 0.01

@@ -56,7 +56,9 @@ def _args(**kw):
 # the keys issue 3 names, plus the option name (two options may share a spacing)
 KEYS = {"band", "option", "state", "spacing_m", "orientation_deg", "peak_gain_dbi", "peak_azimuth_deg",
         "peak_elevation_deg", "front_to_back_db", "front_to_rear_db", "beamwidth_deg", "element_currents",
-        "feedpoint_impedance_ohm", "azimuth_deg", "elevation_deg", "gain_dbi"}
+        "feedpoint_impedance_ohm", "azimuth_deg", "elevation_deg", "gain_dbi",
+        # issue 10: how the currents are made on this band, and every lobe
+        "kind", "design_band", "lobes_deg"}
 # issue 14: the goal-centred and receiving figures
 KEYS_14 = {"use", "orientation_from", "key_takeoff_deg", "lobes", "sky_mean_gain_dbi", "rdf_db",
            "rdf_elevation_deg", "goals"}
@@ -116,7 +118,7 @@ def test_pattern_files(tmp_path):
 
 
 def test_feed_json():
-    site = _site(state="built", state_body="line_m = [5.0, 12.1]")
+    site = _site(state="built", state_body="line_m = [5.5, 12.1]")
     res = feed_verb.build(site, _args())
     json.loads(dumps_json(res))
     (b,) = res["bands"]

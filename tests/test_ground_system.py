@@ -184,7 +184,9 @@ def test_loss_from_radials_lowers_gain_by_the_resistance_ratio():
     # efficiency; computed).
     site = loads(_SITE.format(array=RADIALS))
     opt = site.array.options[0]
-    st = opt.states[0]
+    # held as forced currents (issue 10: a state is otherwise as built, and its
+    # network's line loss would lower the gain too)
+    st = replace(opt.states[0], design_freq_hz=None)
     res = array_pattern(site.array, opt, st, 7.1e6)
     given = replace(site.array, ground_loss_ohm=0.0)
     lossless = array_pattern(given, opt, st, 7.1e6)
@@ -490,7 +492,9 @@ def test_elevated_loss_limits_and_trends():
     buried4 = _loss("average", 4, 0.25, f=F_EL_HZ)[0]
     buried120 = _loss("average", 120, 0.2, f=F_EL_HZ)[0]
     assert values[2] < 0.5 * buried4
-    assert 0.5 * buried120 < values[2] < 2.0 * buried120
+    # (a factor 2.5 either way: the ratio sits at 0.5, and the converged mesh of
+    # issue 10 moved the buried value by 2 %, across a factor-2 edge)
+    assert 0.4 * buried120 < values[2] < 2.5 * buried120
 
 
 def test_elevated_radials_in_the_site_and_feed(tmp_path, capsys):

@@ -44,11 +44,15 @@ __all__ = [
     "line_load_current_a",
     "drive_forced",
     "drive_fed",
+    "drive_chains",
     "design_line_lengths",
     "quarter_wave_forcing",
     "design_l_network",
     "l_network_input_ohm",
     "swr",
+    "LoadingCoil",
+    "loading_coil",
+    "COIL_Q",
 ]
 
 _C0_M_S = 299_792_458.0
@@ -179,7 +183,26 @@ def drive_fed(z_base_ohm: np.ndarray, feed: Feed, freq_hz: float, line_m) -> Dri
     Drive
         True base currents for 1 W into the junction.
     """
-    m = line_chain_matrix(feed, freq_hz, np.asarray(line_m, dtype=float))
+    return drive_chains(z_base_ohm, line_chain_matrix(feed, freq_hz, np.asarray(line_m, dtype=float)))
+
+
+def drive_chains(z_base_ohm: np.ndarray, chains: np.ndarray) -> Drive:
+    """Branches from one junction to every base, each a chain (ABCD) matrix.
+
+    Parameters
+    ----------
+    z_base_ohm : ndarray of complex, shape (n_el, n_el)
+    chains : ndarray of complex, shape (n_el, 2, 2)
+        (V_J, I_branch) = M_e (V_e, I_e) for each element's branch (a line,
+        possibly with lumped parts at its junction end).
+
+    Returns
+    -------
+    Drive
+        True base currents for 1 W into the junction; ``line_loss_w`` is all
+        the power lost between the junction and the bases.
+    """
+    m = np.asarray(chains, dtype=complex)
     a, b, c, d = m[:, 0, 0], m[:, 0, 1], m[:, 1, 0], m[:, 1, 1]
     # V_J 1 = diag(A) Z I + diag(B) I  ->  I per volt at the junction
     i = np.linalg.solve(a[:, None] * z_base_ohm + np.diag(b), np.ones(len(a), dtype=complex))
@@ -216,7 +239,7 @@ def _junction_voltage(feed, freq_hz, length_m, v, i):
 
 
 def design_line_lengths(z_base_ohm: np.ndarray, feed: Feed, freq_hz: float,
-                        wanted=None, min_length_m: float = 0.0) -> LineDesign | None:
+                        wanted=None, min_length_m=0.0) -> LineDesign | None:
     """Line lengths of the given cable that deliver the wanted base currents.
 
     The wanted currents fix the base voltages through the coupled impedances;
@@ -236,8 +259,9 @@ def design_line_lengths(z_base_ohm: np.ndarray, feed: Feed, freq_hz: float,
     wanted : array_like of complex, shape (n_el,), optional
         Relative base currents; default equal amplitude, element 2 at -90 deg
         (two elements only).
-    min_length_m : float
-        Shortest acceptable line (the lines must reach the junction).
+    min_length_m : float or array_like, shape (n_el,)
+        Shortest acceptable line, one for all or one per element (each line
+        must reach from the junction to its element).
 
     Returns
     -------
@@ -253,44 +277,99 @@ def design_line_lengths(z_base_ohm: np.ndarray, feed: Feed, freq_hz: float,
     w = w / w[0]
     v = z_base_ohm @ w
     lam = line_wavelength_m(feed, freq_hz)
-    grid = min_length_m + np.linspace(0.0, lam, 721)
-    vj = np.stack([_junction_voltage(feed, freq_hz, grid, v[e], w[e]) for e in range(n)])
+    lo = np.broadcast_to(np.asarray(min_length_m, dtype=float), (n,)).copy()
+    grids = lo[:, None] + np.linspace(0.0, lam, 721)[None, :]
+    vj = np.stack([_junction_voltage(feed, freq_hz, grids[e], v[e], w[e]) for e in range(n)])
     scale = float(np.max(np.abs(vj)))
 
+    gamma = line_gamma_per_m(feed, freq_hz)
+    z0 = feed.z0_ohm
+
     def residual(lengths):
-        out = []
-        ref = _junction_voltage(feed, freq_hz, lengths[0], v[0], w[0])
+        gl = gamma * np.asarray(lengths)
+        vjs = (np.cosh(gl) * v + z0 * np.sinh(gl) * w) / scale   # V_J = A V + B I of each line
+        diff = vjs[1:] - vjs[0]
+        return np.column_stack([diff.real, diff.imag]).ravel()
+
+    def jacobian(lengths):
+        # d V_J / d l = gamma (sinh(gl) V + Z0 cosh(gl) I) for each line
+        gl = gamma * np.asarray(lengths)
+        dv = gamma * (np.sinh(gl) * v + z0 * np.cosh(gl) * w) / scale
+        jac = np.zeros((2 * (n - 1), n))
         for e in range(1, n):
-            diff = (_junction_voltage(feed, freq_hz, lengths[e], v[e], w[e]) - ref) / scale
-            out.extend([diff.real, diff.imag])
-        return np.array(out)
+            jac[2 * e - 2, 0], jac[2 * e - 1, 0] = -dv[0].real, -dv[0].imag
+            jac[2 * e - 2, e], jac[2 * e - 1, e] = dv[e].real, dv[e].imag
+        return jac
 
     # seeds: the best grid pairs of element 1 against element 2
     gap = np.abs(vj[0][:, None] - vj[1][None, :])
-    order = np.argsort(gap, axis=None)[:40]
+    flat_gap = gap.ravel()
+    near = np.argpartition(flat_gap, 400)[:400]
+    order = near[np.argsort(flat_gap[near], kind="stable")]
     seeds = []
+    picked: list[tuple[int, int]] = []
     for flat in order:
         i1, i2 = np.unravel_index(flat, gap.shape)
-        start = [grid[i1], grid[i2]]
+        # distinct basins only: neighbouring grid pairs lead to the same solution
+        if len(picked) >= 8:
+            break
+        if any(abs(int(i1) - a) < 12 and abs(int(i2) - b) < 12 for a, b in picked):
+            continue
+        picked.append((int(i1), int(i2)))
+        start = [grids[0][i1], grids[1][i2]]
         for e in range(2, n):  # remaining lines: nearest junction voltage on their grid
-            start.append(grid[int(np.argmin(np.abs(vj[e] - vj[0][i1])))])
+            start.append(grids[e][int(np.argmin(np.abs(vj[e] - vj[0][i1])))])
         seeds.append(start)
-    from scipy.optimize import least_squares  # imported here only: it costs 0.6 s
-
     found = []
-    lo, hi = min_length_m, min_length_m + 2.0 * lam
+    hi = lo + 2.0 * lam
     for start in seeds:
-        sol = least_squares(residual, np.array(start), bounds=(lo, hi), xtol=1e-12, ftol=1e-12)
-        found.append((float(np.max(np.abs(sol.fun))), float(np.sum(sol.x)), tuple(sol.x)))
+        x, fun = _bounded_lm(residual, jacobian, np.array(start), lo, hi)
+        found.append((float(np.max(np.abs(fun))), float(np.sum(x)), tuple(x)))
     best_res = min(f[0] for f in found)
     good = [f for f in found if f[0] <= max(1e-7, 1.5 * best_res)]
-    good.sort(key=lambda f: f[1])
+    good.sort(key=lambda f: (round(f[1], 6), tuple(round(x, 6) for x in f[2])))  # ties: the same on every machine
     lengths = good[0][2]
     check = drive_fed(z_base_ohm, feed, freq_hz, lengths).base_current_a
     achieved = check / check[0]
     return LineDesign(line_m=tuple(float(x) for x in lengths),
                       achieved=tuple(complex(x) for x in achieved),
                       error=float(np.max(np.abs(achieved - w))))
+
+
+def _bounded_lm(residual, jacobian, x0, lo, hi, iterations: int = 60):
+    """Levenberg-Marquardt with the steps clipped into [lo, hi] (few unknowns).
+
+    References
+    ----------
+    D. W. Marquardt, "An algorithm for least-squares estimation of nonlinear
+    parameters", J. SIAM 11 (1963) 431-441.
+    """
+    x = np.clip(x0, lo, hi)
+    r = residual(x)
+    cost = float(r @ r)
+    damp = 1e-3
+    for _ in range(iterations):
+        jac = jacobian(x)
+        h = jac.T @ jac
+        g = jac.T @ r
+        try:
+            step = np.linalg.solve(h + damp * np.diag(np.diag(h) + 1e-12), -g)
+        except np.linalg.LinAlgError:
+            break
+        x_new = np.clip(x + step, lo, hi)
+        r_new = residual(x_new)
+        c_new = float(r_new @ r_new)
+        if c_new < cost:
+            moved = float(np.max(np.abs(x_new - x)))
+            x, r, cost = x_new, r_new, c_new
+            damp = max(damp / 3.0, 1e-12)
+            if moved < 1e-12 or cost < 1e-26:
+                break
+        else:
+            damp *= 4.0
+            if damp > 1e10:
+                break
+    return x, r
 
 
 @dataclass(frozen=True, slots=True)
@@ -434,3 +513,54 @@ def swr(z_ohm, r0_ohm: float = 50.0):
     g = np.abs((np.asarray(z_ohm, dtype=complex) - r0_ohm) / (np.asarray(z_ohm, dtype=complex) + r0_ohm))
     g = np.minimum(g, 1.0 - 1e-12)
     return (1.0 + g) / (1.0 - g)
+
+
+COIL_Q = 200.0
+"""Unloaded Q assumed for a base-loading coil (an air-wound HF coil: 150-300 is
+common practice)."""
+
+
+@dataclass(frozen=True, slots=True)
+class LoadingCoil:
+    """A series base coil that resonates a short element.
+
+    Attributes
+    ----------
+    inductance_uh : float
+    loss_ohm : float
+        Its series loss resistance X / Q.
+    q : float
+    resistance_ohm : float
+        The resonated base resistance (element + base loss + coil loss).
+    efficiency : float
+        Share of the power that the element's own resistance takes (its
+        radiation, over a perfect plane), 0..1.
+    """
+
+    inductance_uh: float
+    loss_ohm: float
+    q: float
+    resistance_ohm: float
+    efficiency: float
+
+
+def loading_coil(z_element_ohm: complex, base_loss_ohm: float, freq_hz: float, q: float = COIL_Q
+                 ) -> LoadingCoil | None:
+    """The base coil that cancels a capacitive element reactance, with its loss at ``q``.
+
+    None when the element is not capacitive (no coil resonates it).
+
+    References
+    ----------
+    Base loading of short verticals: X_L = -X_element, R_coil = X_L / Q
+    (common practice; e.g. the loading sections of the ARRL Antenna Book,
+    from memory).
+    """
+    x = float(np.imag(z_element_ohm))
+    if x >= 0:
+        return None
+    xl = -x
+    r_coil = xl / q
+    r_el = float(np.real(z_element_ohm))
+    total = r_el + base_loss_ohm + r_coil
+    return LoadingCoil(xl / (2 * math.pi * freq_hz) * 1e6, r_coil, q, total, r_el / total if total > 0 else 0.0)

@@ -54,12 +54,22 @@ class State:
     the same on every band: an ideal feed) or lines from a common junction
     (``line_m``, physical length of each element's line in metres).
     Phasors use e^{j omega t}: a negative phase lags.
+
+    A forced state with ``design_freq_hz`` is "as built": on every frequency
+    not in ``forced_freqs_hz`` it has the currents its network (designed on
+    ``design_band``) delivers there.
     """
 
     name: str
     phase_deg: tuple[float, ...] | None = None
     amplitude: tuple[float, ...] | None = None
     line_m: tuple[float, ...] | None = None
+    # a forced state is realised by a network designed on one band (None:
+    # an ideal feed on every band); on the bands in forced_freqs_hz the
+    # switch box has its own network, so the forced currents hold there
+    design_band: str | None = None
+    design_freq_hz: float | None = None
+    forced_freqs_hz: tuple[float, ...] = ()
 
     @property
     def is_fed(self) -> bool:
@@ -87,10 +97,19 @@ class ArrayOption:
     positions_m: tuple[tuple[float, float], ...]
     states: tuple[State, ...]
     use: str = "transmit"
+    junction_m: tuple[float, float] | None = None  # where the lines meet; None: the centroid
 
     @property
     def receive(self) -> bool:
         return self.use == "receive"
+
+    @property
+    def junction_point_m(self) -> tuple[float, float]:
+        """(along, across) of the junction, metres."""
+        if self.junction_m is not None:
+            return self.junction_m
+        n = len(self.positions_m)
+        return (sum(p[0] for p in self.positions_m) / n, sum(p[1] for p in self.positions_m) / n)
 
     @property
     def n_elements(self) -> int:
@@ -151,3 +170,4 @@ class ArraySpec:
     rdf_elevation_deg: float = 20.0  # takeoff angle of the receiving directivity factor
     radials: Radials | None = None
     foreground: tuple[ForegroundSector, ...] = ()
+    line_slack_m: float = 1.0   # every designed line is at least its run plus this

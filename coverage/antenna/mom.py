@@ -40,6 +40,9 @@ __all__ = [
     "CoupledElements",
     "solve_elements",
     "segment_count",
+    "MeshChoice",
+    "converged_mesh",
+    "MESH_TOLERANCE",
     "emf_dipole_self_ohm",
     "emf_dipole_mutual_ohm",
     "emf_monopole_self_ohm",
@@ -109,6 +112,69 @@ def segment_count(height_m: float, radius_m: float, freq_hz: float,
     return min(n, n_max)
 
 
+MESH_TOLERANCE = 0.01
+"""Relative change of Z11 on doubling the segments under which a mesh counts as converged."""
+
+
+@dataclass(frozen=True, slots=True)
+class MeshChoice:
+    """The segment count chosen for one (height, radius, frequency).
+
+    Attributes
+    ----------
+    n_node : int
+        Segments per monopole.
+    change : float
+        |Z11(2n) - Z11(n)| / |Z11(2n)| of the last doubling tried (a last
+        step to the thin-wire limit that is less than a doubling is scaled
+        to one by ln 2 / ln(n2/n)).
+    converged : bool
+        ``change`` is under :data:`MESH_TOLERANCE`. False when the thin-wire
+        limit (segments at least four radii long) came first.
+    limit_node : int
+        The thin-wire limit of the segment count.
+    """
+
+    n_node: int
+    change: float
+    converged: bool
+    limit_node: int
+
+
+@functools.lru_cache(maxsize=512)
+def converged_mesh(height_m: float, radius_m: float, freq_hz: float,
+                   tolerance: float = MESH_TOLERANCE) -> MeshChoice:
+    """Segments per monopole such that Z11 is converged to ``tolerance`` by doubling.
+
+    Start from :func:`segment_count` and double while the single element's
+    base impedance changes by ``tolerance`` or more; the finer mesh of the
+    first doubling that changes it less is used. Segments never get shorter
+    than four radii (the reduced kernel's limit): there the last step's
+    change is kept and ``converged`` is False. Near an anti-resonance that is
+    common, because a delta-gap feed adds a shunt capacitance that grows as
+    the segments shrink (a real base insulator's capacitance matters as much).
+
+    References
+    ----------
+    Convergence by successive mesh refinement: common practice for moment
+    methods (Balanis, *Antenna Theory*, 3rd ed., sec. 8.3, from memory).
+    """
+    n_lim = max(2, int(height_m / (4.0 * radius_m)))
+    n = min(segment_count(height_m, radius_m, freq_hz), n_lim)
+    z_prev = solve_elements(height_m, radius_m, ((0.0, 0.0),), freq_hz, n_node=n).impedance_ohm[0, 0]
+    change = math.inf
+    while n < n_lim:
+        n2 = min(2 * n, n_lim)
+        z = solve_elements(height_m, radius_m, ((0.0, 0.0),), freq_hz, n_node=n2).impedance_ohm[0, 0]
+        # a last step short of a doubling is scaled to one (the drift is
+        # about logarithmic in the segment length)
+        change = abs(z - z_prev) / max(abs(z), 1e-300) * math.log(2.0) / math.log(n2 / n)
+        n, z_prev = n2, z
+        if change < tolerance:
+            return MeshChoice(n, float(change), True, n_lim)
+    return MeshChoice(n, float(change), bool(change < tolerance), n_lim)
+
+
 def _psi(k: float, dz: float, rho: np.ndarray, p: np.ndarray) -> np.ndarray:
     """Test integral of the centre triangle against G at axis offset p*dz.
 
@@ -160,17 +226,14 @@ def _solve(freq_hz: float, height_m: float, radius_m: float,
     inverse = inverse.reshape(n_el, n_el)
     rows = _toeplitz_rows(k, dz, rho, n_full)  # (n_rho, n_full)
 
-    m = np.arange(n_full)
-    offset = np.abs(m[:, None] - m[None, :])
-    z_full = rows[inverse[:, :, None, None], offset[None, None, :, :]]  # (e, e', m, n)
-    z_full = z_full.transpose(0, 2, 1, 3).reshape(n_el * n_full, n_el * n_full)
-
-    # symmetric currents: full coefficient at index m equals c_|m - centre|
-    centre = n_node - 1
-    sym = np.zeros((n_full, n_node))
-    sym[m, np.abs(m - centre)] = 1.0
-    s_mat = np.kron(np.eye(n_el), sym)
-    z_red = s_mat.T @ z_full @ s_mat  # (n_el N, n_el N)
+    # symmetric currents (c at +-i equal): the reduced Galerkin matrix is
+    # s_i s_j [T(|i - j|) + T(i + j)], s_0 = 1/sqrt 2, s_i = sqrt 2 (a Toeplitz
+    # plus a Hankel part), assembled directly instead of from the full matrix
+    i = np.arange(n_node)
+    scale = np.where(i == 0, math.sqrt(0.5), math.sqrt(2.0))
+    blocks = (rows[:, np.abs(i[:, None] - i[None, :])] + rows[:, i[:, None] + i[None, :]]) \
+        * (scale[:, None] * scale[None, :])                                  # (n_rho, N, N)
+    z_red = blocks[inverse].transpose(0, 2, 1, 3).reshape(n_el * n_node, n_el * n_node)
 
     ports = np.zeros((n_el * n_node, n_el))
     ports[np.arange(n_el) * n_node, np.arange(n_el)] = 1.0
@@ -211,7 +274,8 @@ def solve_elements(height_m: float, radius_m: float, positions_m, freq_hz: float
         (along, across) of each base, metres. Elements must not touch.
     freq_hz : float
     n_node : int, optional
-        Segments per monopole; default from :func:`segment_count`.
+        Segments per monopole; default from :func:`converged_mesh` (Z11
+        converged to 1 % by doubling, or the thin-wire limit).
 
     Returns
     -------
@@ -229,7 +293,7 @@ def solve_elements(height_m: float, radius_m: float, positions_m, freq_hz: float
         raise ValueError("thin-wire model: radius_m must be under 5 % of height_m")
     pos = tuple((float(a), float(b)) for a, b in np.asarray(positions_m, dtype=float).reshape(-1, 2))
     if n_node is None:
-        n_node = segment_count(height_m, radius_m, freq_hz)
+        n_node = converged_mesh(float(height_m), float(radius_m), float(freq_hz)).n_node
     return _solve_cached(float(freq_hz), float(height_m), float(radius_m), pos, int(n_node))
 
 

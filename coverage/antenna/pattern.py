@@ -31,6 +31,7 @@ from .feed import Drive, drive_fed, drive_forced
 from .ground import reflection_vertical
 from .model import ArrayOption, ArraySpec, Ground, State
 from .mom import C0_M_S, ETA0_OHM, CoupledElements, solve_elements
+from .network import Network, design_network, network_drive
 from .radials import ground_loss
 
 __all__ = [
@@ -47,6 +48,11 @@ __all__ = [
     "gains_from_currents_dbi",
     "LOBE_WINDOW_DB",
     "lobe_bearings_deg",
+    "base_impedance_ohm",
+    "state_kind",
+    "state_network",
+    "KINDS",
+    "gain_toward_dbi",
 ]
 
 GAIN_FLOOR_DBI = -60.0
@@ -84,6 +90,11 @@ class ArrayResult:
         Power lost in the base (radial) resistances per watt of input.
     impedance_matrix_ohm : ndarray of complex, shape (n_el, n_el)
         Coupled base impedances over the perfect plane, without ground loss.
+    kind : {"forced", "as-built", "fed"}
+        Forced currents held on this band; the currents the state's network
+        (designed on ``design_band``) delivers here; or the ``line_m`` lines.
+    design_band : str or None
+        The band the state's network is designed on (as-built states).
     """
 
     freq_hz: float
@@ -97,6 +108,51 @@ class ArrayResult:
     line_loss_w: float
     ground_loss_w: float
     impedance_matrix_ohm: np.ndarray
+    kind: str = "forced"
+    design_band: str | None = None
+
+
+KINDS = ("forced", "as-built", "fed")
+
+
+def base_impedance_ohm(spec: ArraySpec, option: ArrayOption, freq_hz: float,
+                       sol: CoupledElements | None = None) -> np.ndarray:
+    """Coupled base impedances with each base's series loss on the diagonal.
+
+    Returns
+    -------
+    ndarray of complex, shape (n_el, n_el)
+        The one place the base (radial) loss enters the drive.
+    """
+    if sol is None:
+        sol = coupled_elements(spec, option, freq_hz)
+    return sol.impedance_ohm + np.diag(ground_loss(spec, option, freq_hz).ohm)
+
+
+def state_kind(state: State, freq_hz: float) -> str:
+    """"fed", "forced" (ideal, or a band of its own in forced_freqs_hz) or "as-built"."""
+    if state.is_fed:
+        return "fed"
+    if state.design_freq_hz is None:
+        return "forced"
+    if any(math.isclose(freq_hz, f, rel_tol=1e-9) for f in state.forced_freqs_hz):
+        return "forced"
+    return "as-built"
+
+
+@functools.lru_cache(maxsize=256)
+def state_network(spec: ArraySpec, option: ArrayOption, state: State) -> Network:
+    """The network that realises a forced state, designed on its design band (cached).
+
+    Lines from the option's junction (default the centroid), each at least
+    its run plus ``spec.line_slack_m``; see :mod:`lobeplan.antenna.network`.
+    """
+    if state.design_freq_hz is None or state.is_fed:
+        raise ValueError(f"state {state.name!r} has no network to design")
+    f = state.design_freq_hz
+    z = base_impedance_ohm(spec, option, f)
+    return design_network(z, spec.feed, f, state_currents(state, option.n_elements), option.positions_m,
+                          option.junction_point_m, spec.line_slack_m)
 
 
 def coupled_elements(spec: ArraySpec, option: ArrayOption, freq_hz: float) -> CoupledElements:
@@ -121,11 +177,13 @@ def state_drive(spec: ArraySpec, option: ArrayOption, state: State, freq_hz: flo
     if sol is None:
         sol = coupled_elements(spec, option, freq_hz)
     n = sol.n_elements
-    z_base = sol.impedance_ohm + np.diag(ground_loss(spec, option, freq_hz).ohm)
+    z_base = base_impedance_ohm(spec, option, freq_hz, sol)
     if state.is_fed:
         if len(state.line_m) != n:
             raise ValueError(f"state {state.name!r}: need one line per element ({n})")
         return drive_fed(z_base, spec.feed, freq_hz, state.line_m)
+    if n > 1 and state_kind(state, freq_hz) == "as-built":
+        return network_drive(z_base, spec.feed, state_network(spec, option, state), freq_hz)
     return drive_forced(z_base, state_currents(state, n))
 
 
@@ -204,6 +262,29 @@ def gains_from_currents_dbi(sol: CoupledElements, grounds, base_current_a: np.nd
     return 10.0 * np.log10(np.maximum(gain, floor))
 
 
+def gain_toward_dbi(sol: CoupledElements, ground: Ground, base_current_a: np.ndarray, input_power_w: float,
+                    elevation_index: int, azimuth_deg) -> np.ndarray:
+    """Gain at one elevation row toward a few azimuths (array frame), dBi.
+
+    The same far field as :func:`gain_from_currents_dbi`, evaluated only where
+    asked (for tolerance searches that need the front and the back only).
+
+    Returns
+    -------
+    ndarray, shape (n_az,), floored at -60 dBi.
+    """
+    k = 2.0 * math.pi * sol.freq_hz / C0_M_S
+    nodes = sol.currents_on_wires(base_current_a)
+    kern = _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size, ground)[elevation_index]
+    vert = nodes @ kern                                                   # (n_el,)
+    az = np.radians(np.atleast_1d(np.asarray(azimuth_deg, dtype=float)))
+    pos = sol.positions_m
+    proj = pos[:, 0, None] * np.cos(az)[None, :] + pos[:, 1, None] * np.sin(az)[None, :]
+    field = (vert[:, None] * np.exp(1j * k * _COS_EL[elevation_index] * proj)).sum(axis=0)
+    gain = ETA0_OHM * k * k * np.abs(field) ** 2 / (8.0 * math.pi * input_power_w)
+    return 10.0 * np.log10(np.maximum(gain, 10.0 ** (GAIN_FLOOR_DBI / 10.0)))
+
+
 def array_pattern(spec: ArraySpec, option: ArrayOption, state: State, freq_hz: float) -> ArrayResult:
     """Gain pattern and drive of one switch state of one option on one band.
 
@@ -212,8 +293,10 @@ def array_pattern(spec: ArraySpec, option: ArrayOption, state: State, freq_hz: f
     spec : ArraySpec
     option : ArrayOption
     state : State
-        Forced currents hold as given on every band; fed states are solved
-        through their lines at ``freq_hz``.
+        Fed states are solved through their lines at ``freq_hz``. Forced
+        states with a design band are solved through the network designed
+        there (coupling, line loss and the fixed parts: "as built"), except
+        on their ``forced_freqs_hz``, where the forced currents hold.
     freq_hz : float
 
     Returns
@@ -229,6 +312,7 @@ def array_pattern(spec: ArraySpec, option: ArrayOption, state: State, freq_hz: f
     """
     sol = coupled_elements(spec, option, freq_hz)
     drive = state_drive(spec, option, state, freq_hz, sol)
+    kind = "forced" if option.n_elements == 1 and not state.is_fed else state_kind(state, freq_hz)
     i = drive.base_current_a
     ground_loss_w = 0.5 * float(np.sum(ground_loss(spec, option, freq_hz).ohm * np.abs(i) ** 2))
     gain = gain_from_currents_dbi(sol, spec.ground, i, 1.0)
@@ -239,7 +323,8 @@ def array_pattern(spec: ArraySpec, option: ArrayOption, state: State, freq_hz: f
                        element_power_w=drive.element_power_w,
                        junction_impedance_ohm=drive.junction_impedance_ohm,
                        line_loss_w=drive.line_loss_w, ground_loss_w=ground_loss_w,
-                       impedance_matrix_ohm=sol.impedance_ohm)
+                       impedance_matrix_ohm=sol.impedance_ohm,
+                       kind=kind, design_band=state.design_band if kind == "as-built" else None)
 
 
 def vertical_gain_dbi(spec: ArraySpec, freq_hz: float, far_ground: Ground | None = None) -> np.ndarray:
@@ -296,7 +381,8 @@ def pattern_figures(gain_dbi: np.ndarray) -> dict:
         Ratios are capped at 60 dB.
     """
     g = np.asarray(gain_dbi, dtype=float)
-    el, az = np.unravel_index(int(np.argmax(g)), g.shape)
+    # gains equal to 1e-6 dB count as equal, so twin beams pick the same one on every machine
+    el, az = np.unravel_index(int(np.argmax(np.round(g / _TIE_DB))), g.shape)
     row = g[el]
     peak = float(row[az])
     n = row.size

@@ -12,21 +12,17 @@ Region strings (the ``region`` and ``avoid`` keys of a site file):
 - ``file:PATH`` -- every polygon of any vector file geopandas reads
   (relative paths are taken from the site file's folder).
 
-Continents are built part by part. Each polygon part takes its country's
-Natural Earth ``CONTINENT`` label, with these rules:
+Countries are the Natural Earth 1:10m admin-0 features (territories that
+Natural Earth keeps apart, such as Bermuda or Guam, are countries of their
+own), found by name, ISO alpha-3 code or a common alternative name
+(``ALIASES``: ``England`` means the United Kingdom, with a note saying so).
 
-1. Russia is split at 60 deg E: the part of it from 0 to 60 deg E is
-   Europe, the rest (including the piece across the antimeridian) Asia.
-2. A part more than 2000 km from its country's largest part (its home part),
-   and nearer to the home part of a country with another label, takes that
-   label. So French Guiana is South America, the Indonesian half of New
-   Guinea is Oceania; Hawaii stays North America (no other home part is
-   nearer), and Svalbard stays Europe (it is within 2000 km of Norway).
-3. A country labelled "Seven seas (open ocean)" takes the label of the
-   nearest home part of any other country.
-
-Egypt (Sinai), Turkey (Anatolia and Thrace) and Kazakhstan are not cut:
-each part follows its country's label.
+Continents are built part by part: every polygon part is assigned by where
+it lies (rules in :mod:`lobeplan.geo.continents`; the labels ship with the
+data). Russia is split at 60 deg E: the part of it from 0 to 60 deg E is
+Europe, the rest Asia. Egypt (Sinai), Turkey (Anatolia and Thrace) and
+Kazakhstan are not cut: each part near its country's home part follows
+the country's label.
 """
 from __future__ import annotations
 
@@ -47,13 +43,13 @@ from shapely.geometry.base import BaseGeometry
 from .paths import GEOD
 from .station import Station
 
-__all__ = ["CONTINENTS", "RegionError", "Region", "Disc", "GoalArea", "parse_region", "resolve", "sample_points",
-           "countries", "continent_geometry",
+__all__ = ["CONTINENTS", "ALIASES", "RegionError", "Region", "Disc", "GoalArea", "parse_region", "resolve",
+           "sample_points", "countries", "basemap_geometries", "country_lookup", "country_suggestions",
+           "part_continents", "continent_geometry", "CountryTable",
            "region_area", "region_points", "goal_area", "goal_points"]
 
 CONTINENTS = ("Africa", "Antarctica", "Asia", "Europe", "North America", "Oceania", "South America")
 _KINDS = ("country", "continent", "circle", "sector", "file")
-_FAR_FROM_HOME_KM = 2000.0
 _RUSSIA_SPLIT_LON_DEG = 60.0
 # smallest circle radius or sector depth: below 1 m the lon/lat outline
 # (vertices 1e-11 deg apart) can no longer be drawn
@@ -72,33 +68,179 @@ class Region:
     text: str
     name: str = ""                      # country / continent / file
     numbers: tuple[float, ...] = ()     # circle / sector
+    note: str = ""                      # what an alternative name was taken to mean
 
 
 # --------------------------------------------------------------------------
 # Shipped countries and the continents built from them
 
 
+@dataclass(frozen=True)
+class CountryTable:
+    """The country table: one text array per attribute, one geometry per row.
+
+    ``table["NAME"]`` is an array of str; ``table.geometry`` an array of
+    shapely (Multi)Polygons in lon/lat degrees.
+    """
+
+    columns: dict
+    geometry: np.ndarray
+    continents: dict            # continent name -> one valid (Multi)Polygon
+
+    def __getitem__(self, column: str) -> np.ndarray:
+        return self.columns[column]
+
+    def __len__(self) -> int:
+        return len(self.geometry)
+
+
 @functools.lru_cache(maxsize=1)
-def countries():
-    """The shipped Natural Earth 1:110m admin-0 countries (GeoDataFrame)."""
+def countries() -> CountryTable:
+    """The shipped Natural Earth 1:10m admin-0 countries.
+
+    Columns: ``NAME``, ``NAME_LONG``, ``ADMIN``, ``ADM0_A3``, ``ISO_A3_EH``,
+    ``SOVEREIGNT``, ``TYPE``, ``CONTINENT`` (Natural Earth's label) and
+    ``PART_CONTINENTS`` (the continent of each polygon part, ``;``-separated,
+    see :mod:`lobeplan.geo.continents`); ``continents`` holds each
+    continent merged from those parts (Russia split at 60 deg E). Territories that Natural Earth
+    keeps as features of their own (Bermuda, Guam, ...) are rows of their own.
+    The file (made by ``tools/make_countries.py``) holds the features' WKB
+    back to back with their offsets, and the attributes as text arrays.
+    """
+    ref = resources.files("lobeplan.data").joinpath("countries_10m.zip")
+
+    def wkb(blob: np.ndarray, offsets: np.ndarray) -> np.ndarray:
+        raw = blob.tobytes()
+        return shapely.from_wkb([raw[i:j] for i, j in zip(offsets[:-1], offsets[1:])])
+
+    with resources.as_file(ref) as path, np.load(path, allow_pickle=False) as z:
+        geometry = wkb(z["wkb"], z["offsets"])
+        continents = dict(zip((str(c) for c in z["continent_names"]),
+                              wkb(z["continent_wkb"], z["continent_offsets"])))
+        columns = {k: z[k] for k in z.files if not k.startswith("continent_") and k not in ("wkb", "offsets")}
+    return CountryTable(columns, geometry, continents)
+
+
+@functools.lru_cache(maxsize=1)
+def basemap_geometries() -> tuple[BaseGeometry, ...]:
+    """Land outlines for the map background (Natural Earth 1:110m, a light file).
+
+    Small territories missing from it are drawn as goals or markers.
+    """
     import geopandas as gpd
 
     ref = resources.files("lobeplan.data").joinpath("countries_110m.geojson")
     with resources.as_file(ref) as path:
-        return gpd.read_file(path)
+        return tuple(g for g in gpd.read_file(path).geometry if g is not None and not g.is_empty)
+
+
+# Names people use that are not Natural Earth admin-0 names: alias ->
+# (ADM0_A3, note). A note says what the name is taken to mean.
+ALIASES: dict[str, tuple[str, str]] = {
+    "england": ("GBR", "England is part of the United Kingdom: the whole United Kingdom is used"),
+    "scotland": ("GBR", "Scotland is part of the United Kingdom: the whole United Kingdom is used"),
+    "wales": ("GBR", "Wales is part of the United Kingdom: the whole United Kingdom is used"),
+    "northern ireland": ("GBR", "Northern Ireland is part of the United Kingdom: the whole United Kingdom is used"),
+    "great britain": ("GBR", "taken as the United Kingdom"),
+    "britain": ("GBR", "taken as the United Kingdom"),
+    "uk": ("GBR", ""),
+    "usa": ("USA", ""),
+    "us": ("USA", ""),
+    "america": ("USA", "taken as the United States of America"),
+    "alaska": ("USA", "Alaska is part of the United States: the whole United States is used "
+               "(clip it, e.g. clip = [-180, 50, -129, 72])"),
+    "hawaii": ("USA", "Hawaii is part of the United States: the whole United States is used "
+               "(clip it, e.g. clip = [-161, 18, -154, 23])"),
+    "holland": ("NLD", "taken as the Netherlands"),
+    "burma": ("MMR", ""),
+    "ivory coast": ("CIV", ""),
+    "czech republic": ("CZE", ""),
+    "swaziland": ("SWZ", ""),
+    "east timor": ("TLS", ""),
+    "cape verde": ("CPV", ""),
+    "vatican": ("VAT", ""),
+    "south korea": ("KOR", ""),
+    "korea": ("KOR", "taken as South Korea (North Korea is 'Dem. Rep. Korea' or PRK)"),
+    "north korea": ("PRK", ""),
+    "dr congo": ("COD", ""),
+    "drc": ("COD", ""),
+    "zaire": ("COD", ""),
+    "congo brazzaville": ("COG", ""),
+    "russian federation": ("RUS", ""),
+    "corsica": ("FRA", "Corsica is part of France: the whole of France (with its overseas regions) is used"),
+    "sicily": ("ITA", "Sicily is part of Italy: the whole of Italy is used"),
+    "sardinia": ("ITA", "Sardinia is part of Italy: the whole of Italy is used"),
+    "crete": ("GRC", "Crete is part of Greece: the whole of Greece is used"),
+    "tasmania": ("AUS", "Tasmania is part of Australia: the whole of Australia is used"),
+    "canary islands": ("ESP", "the Canary Islands are part of Spain: the whole of Spain is used"),
+    "balearic islands": ("ESP", "the Balearic Islands are part of Spain: the whole of Spain is used"),
+    "azores": ("PRT", "the Azores are part of Portugal: the whole of Portugal is used"),
+    "madeira": ("PRT", "Madeira is part of Portugal: the whole of Portugal is used"),
+    "svalbard": ("NOR", "Svalbard is part of Norway: the whole of Norway is used"),
+    "galapagos": ("ECU", "the Galapagos are part of Ecuador: the whole of Ecuador is used"),
+    "easter island": ("CHL", "Easter Island is part of Chile: the whole of Chile is used"),
+    "reunion": ("FRA", "Reunion is part of France: the whole of France (with its overseas regions) is used"),
+    "martinique": ("FRA", "Martinique is part of France: the whole of France (with its overseas regions) is used"),
+    "guadeloupe": ("FRA", "Guadeloupe is part of France: the whole of France (with its overseas regions) is used"),
+    "french guiana": ("FRA", "French Guiana is part of France: the whole of France (with its overseas regions) is used"),
+    "sao tome": ("STP", ""),
+    "east pakistan": ("BGD", ""),
+}
+
+
+def _norm(text: str) -> str:
+    """Lower case, accents and punctuation dropped, 'saint'/'st' made one."""
+    import unicodedata
+
+    t = unicodedata.normalize("NFKD", str(text)).encode("ascii", "ignore").decode().lower()
+    t = re.sub(r"&", " and ", t)
+    t = re.sub(r"[^a-z0-9]+", " ", t).strip()
+    t = re.sub(r"^the ", "", t)
+    return re.sub(r"\bsaint\b", "st", t)
 
 
 @functools.lru_cache(maxsize=1)
 def _country_index() -> dict[str, int]:
-    """Lower-case name or code -> row of the country table."""
+    """Normalised name, code or alias -> row of the country table."""
     table = countries()
     index: dict[str, int] = {}
     for col in ("ADM0_A3", "ISO_A3_EH", "NAME", "NAME_LONG", "ADMIN"):
         for row, value in enumerate(table[col]):
-            key = str(value).strip().lower()
-            if key and key != "-99":
+            key = _norm(value)
+            if key and key != "99":
                 index.setdefault(key, row)
+    by_code = {str(c): r for r, c in enumerate(table["ADM0_A3"])}
+    for alias, (code, _) in ALIASES.items():
+        index.setdefault(_norm(alias), by_code[code])
     return index
+
+
+def country_lookup(name: str) -> tuple[int, str] | None:
+    """Row of the country table a name, code or alias means, and a note (or "")."""
+    key = _norm(name)
+    row = _country_index().get(key)
+    if row is None:
+        return None
+    own = {_norm(countries()[c][row]) for c in ("ADM0_A3", "ISO_A3_EH", "NAME", "NAME_LONG", "ADMIN")}
+    note = "" if key in own else next((n for a, (_, n) in ALIASES.items() if _norm(a) == key), "")
+    return row, note
+
+
+def country_suggestions(name: str, n: int = 3) -> list[str]:
+    """The nearest real country names to an unknown one (display names)."""
+    table = countries()
+    names = {}
+    for col in ("NAME", "ADMIN"):
+        for value in table[col]:
+            names.setdefault(_norm(value), str(value))
+    for alias in ALIASES:
+        names.setdefault(_norm(alias), alias.title())
+    key = _norm(name)
+    # a name that holds the text as a whole word first ("korea" -> both Koreas)
+    hits = [v for k, v in names.items() if key and re.search(rf"\b{re.escape(key)}\b", k)]
+    close = difflib.get_close_matches(key, list(names), n=n, cutoff=0.6)
+    out = list(dict.fromkeys(hits + [names[c] for c in close]))
+    return out[:n]
 
 
 def _parts(geom: BaseGeometry) -> list[Polygon]:
@@ -126,54 +268,65 @@ def _area_m2(geom: BaseGeometry) -> float:
     return float(flat.area) * _SPHERE_RADIUS_M**2
 
 
-def _distance_to_ring_km(part: Polygon, home: Polygon) -> float:
-    rp = part.representative_point()
-    x, y = np.asarray(home.exterior.coords).T
-    _, _, d = GEOD.inv(np.full_like(x, rp.x), np.full_like(y, rp.y), x, y)
-    return float(np.min(d)) / 1000.0
+def _ring_areas(rings: np.ndarray) -> np.ndarray:
+    """Unsigned area (unit sphere, sr) of lon/lat rings whose edges are straight in lon/lat.
+
+    Green's theorem in the equal-area plane (lon in radians, sin lat): each
+    edge adds the integral of sin(lat) dlon along it, which for latitude
+    linear in longitude is dlon (cos lat1 - cos lat2) / (lat2 - lat1)
+    (dlon sin lat where the edge runs along a parallel). Exact, and no
+    densifying needed.
+    """
+    xy, idx = shapely.get_coordinates(rings, return_index=True)
+    if xy.size == 0:
+        return np.zeros(len(rings))
+    lon, lat = np.radians(xy[:, 0]), np.radians(np.clip(xy[:, 1], -90.0, 90.0))
+    same = idx[1:] == idx[:-1]
+    l1, l2, p1, p2 = lon[:-1][same], lon[1:][same], lat[:-1][same], lat[1:][same]
+    dp = p2 - p1
+    flat = np.abs(dp) < 1e-12
+    f = np.where(flat, np.sin(p1), (np.cos(p1) - np.cos(p2)) / np.where(flat, 1.0, dp))
+    return np.abs(np.bincount(idx[1:][same], weights=(l2 - l1) * f, minlength=len(rings)))
+
+
+def _areas_m2(parts) -> np.ndarray:
+    """Area on the sphere of many lon/lat polygons at once (holes taken out), m2."""
+    arr = np.asarray(list(parts), dtype=object)
+    if arr.size == 0:
+        return np.zeros(0)
+    out = _ring_areas(shapely.get_exterior_ring(arr))
+    n_holes = shapely.get_num_interior_rings(arr)
+    for i in np.flatnonzero(n_holes):
+        out[i] -= _ring_areas(np.asarray([shapely.get_interior_ring(arr[i], k) for k in range(n_holes[i])])).sum()
+    return out * _SPHERE_RADIUS_M**2
 
 
 @functools.lru_cache(maxsize=1)
-def _continent_parts() -> dict[str, tuple[Polygon, ...]]:
+def part_continents() -> list[list[str]]:
+    """Continent of every polygon part of every country row (Russia by 60 deg E)."""
     table = countries()
-    geoms = list(table.geometry)
-    labels = [str(c) for c in table["CONTINENT"]]
-    homes = [max(_parts(g), key=_area_m2) for g in geoms]
-    out: dict[str, list[Polygon]] = {c: [] for c in CONTINENTS}
-
-    def nearest_label(part: Polygon, skip: int, unlike: str | None) -> tuple[float, str]:
-        best = (np.inf, "")
-        for j, home in enumerate(homes):
-            if j == skip or labels[j] not in CONTINENTS or (unlike and labels[j] == unlike):
-                continue
-            best = min(best, (_distance_to_ring_km(part, home), labels[j]))
-        return best
-
-    for i, geom in enumerate(geoms):
-        if str(table["ADM0_A3"].iloc[i]) == "RUS":
-            europe_box = box(0.0, -90.0, _RUSSIA_SPLIT_LON_DEG, 90.0)
-            out["Europe"].extend(_parts(geom.intersection(europe_box)))
-            out["Asia"].extend(_parts(geom.difference(europe_box)))
-            continue
-        for part in _parts(geom):
-            label = labels[i]
-            if label not in CONTINENTS:
-                label = nearest_label(part, i, None)[1]
-            elif part is not homes[i] and not part.equals(homes[i]):
-                own = _distance_to_ring_km(part, homes[i])
-                if own > _FAR_FROM_HOME_KM:
-                    other_km, other = nearest_label(part, i, label)
-                    if other_km < own:
-                        label = other
-            out[label].append(part)
-    return {k: tuple(v) for k, v in out.items()}
+    out = []
+    for code, geom, labels in zip(table["ADM0_A3"], table.geometry, table["PART_CONTINENTS"]):
+        if str(code) == "RUS":
+            out.append(["Europe" if 0.0 <= p.representative_point().x < _RUSSIA_SPLIT_LON_DEG else "Asia"
+                        for p in shapely.get_parts(geom)])
+        else:
+            out.append(str(labels).split(";"))
+    return out
 
 
+@functools.lru_cache(maxsize=512)
+def _country_geometry(code: str) -> MultiPolygon:
+    row = _country_index()[_norm(code)]
+    return MultiPolygon(_parts(countries().geometry[row]))
+
+
+@functools.lru_cache(maxsize=8)
 def continent_geometry(name: str) -> MultiPolygon:
     key = _continent_key(name)
     if key is None:
         raise RegionError(_unknown("continent", name, CONTINENTS))
-    return MultiPolygon(list(_continent_parts()[key]))
+    return MultiPolygon(_parts(countries().continents[key]))
 
 
 def _continent_key(name: str) -> str | None:
@@ -208,10 +361,14 @@ def parse_region(text: str) -> Region:
     if kind not in _KINDS:
         raise RegionError(_unknown("region kind", kind, _KINDS) + f" (in {text!r})")
     if kind == "country":
-        idx = _country_index()
-        if arg.lower() not in idx:
-            raise RegionError(_unknown("country", arg, list(countries()["NAME"]) + list(countries()["ADM0_A3"])))
-        return Region(kind, text, name=str(countries()["NAME"].iloc[idx[arg.lower()]]))
+        found = country_lookup(arg)
+        if found is None:
+            close = country_suggestions(arg)
+            hint = f"; did you mean {' or '.join(repr(c) for c in close)}?" if close else \
+                "; `lobeplan regions TEXT` lists the names"
+            raise RegionError(f"unknown country {arg!r}{hint}")
+        row, note = found
+        return Region(kind, text, name=str(countries()["ADM0_A3"][row]), note=note)
     if kind == "continent":
         key = _continent_key(arg)
         if key is None:
@@ -388,23 +545,97 @@ def _polar_region(lon0: float, lat0: float, az_from: float, az_to: float,
 
 
 def _read_file(name: str, base_dir: str) -> MultiPolygon:
-    import geopandas as gpd
+    """Every polygon of a vector file, as valid lon/lat polygons in -180..180.
+
+    Refused with a clear message: a folder, a device or pipe, a file that is
+    not a vector file, one with no polygons, coordinates off the globe, and
+    coordinates in metres (or any projected unit) without a CRS. Repaired:
+    self-intersecting polygons (``shapely.make_valid``), and rings that cross
+    the antimeridian without being split (RFC 7946 sec. 3.1.9 asks writers
+    to split them; one that is not is taken to cross where two vertices are
+    more than 180 deg of longitude apart, and is split there).
+    """
+    import stat
 
     path = Path(name)
     if not path.is_absolute():
         path = Path(base_dir) / path
-    if not path.is_file():
-        raise RegionError(f"file:{name}: no such file ({path})")
+    try:
+        mode = path.stat().st_mode
+    except OSError:
+        raise RegionError(f"file:{name}: no such file ({path})") from None
+    if stat.S_ISDIR(mode):
+        raise RegionError(f"file:{name}: is a folder, not a file ({path}); expected a vector file such as GeoJSON")
+    if not stat.S_ISREG(mode):
+        raise RegionError(f"file:{name}: is not a regular file (a device or a pipe: {path}); "
+                          "expected a vector file such as GeoJSON")
+    import geopandas as gpd
+
     try:
         frame = gpd.read_file(path)
     except Exception as exc:  # pyogrio raises several kinds
         raise RegionError(f"file:{name}: cannot be read as a vector file ({type(exc).__name__})") from None
     if frame.crs is not None and not frame.crs.equals("EPSG:4326"):
-        frame = frame.to_crs("EPSG:4326")
+        try:
+            frame = frame.to_crs("EPSG:4326")
+        except Exception as exc:
+            raise RegionError(f"file:{name}: its CRS cannot be turned into longitude/latitude "
+                              f"({type(exc).__name__})") from None
     polys = [p for g in frame.geometry if g is not None for p in _parts(g)]
     if not polys:
         raise RegionError(f"file:{name}: holds no polygons")
-    return MultiPolygon(polys)
+    xy = np.concatenate([shapely.get_coordinates(p) for p in polys])
+    if not np.all(np.isfinite(xy)):
+        raise RegionError(f"file:{name}: has coordinates that are not finite numbers")
+    big = float(np.max(np.abs(xy)))
+    if big > 1000.0:  # GeoJSON without a CRS is read as EPSG:4326 (RFC 7946)
+        raise RegionError(f"file:{name}: coordinates reach {big:,.0f}, which looks like metres (a projected "
+                          "CRS), and the file names no projected CRS; expected longitude/latitude degrees "
+                          "(EPSG:4326), or a file that names its CRS")
+    lat_off = float(np.max(np.abs(xy[:, 1])))
+    if lat_off > 90.0:
+        raise RegionError(f"file:{name}: latitude {lat_off:g} is off the globe; expected -90 to 90 degrees")
+    if xy[:, 0].min() < -360.0 or xy[:, 0].max() > 360.0:
+        raise RegionError(f"file:{name}: longitude {big:g} is off the globe; expected -180 to 180 degrees")
+    out: list[Polygon] = []
+    for k, poly in enumerate(polys):
+        poly = _across_antimeridian(poly, name, k + 1)
+        fixed = [q for q in _parts(shapely.make_valid(poly)) if q.area > 0] if not poly.is_valid else [poly]
+        if not fixed:
+            raise RegionError(f"file:{name}: polygon {k + 1} is self-intersecting and has no area left once "
+                              "repaired; expected a simple ring")
+        for q in fixed:
+            out.extend(_wrap_to_lon_range(q) if q.bounds[0] < -180.0 or q.bounds[2] > 180.0 else [q])
+    return MultiPolygon(out)
+
+
+def _across_antimeridian(poly: Polygon, name: str, k: int) -> Polygon:
+    """Unwrap the rings of a polygon that cross +-180 deg without being split."""
+    def jumps(ring) -> bool:
+        x = np.asarray(ring.coords)[:, 0]
+        return bool(np.any(np.abs(np.diff(x)) > 180.0))
+
+    if not any(jumps(r) for r in [poly.exterior, *poly.interiors]):
+        return poly
+
+    def unwrap(ring, ref: float | None = None) -> np.ndarray:
+        xy = np.asarray(ring.coords, dtype=float)
+        x = np.degrees(np.unwrap(np.radians(xy[:, 0])))
+        if abs(x[-1] - x[0]) > 1e-6:
+            raise RegionError(f"file:{name}: polygon {k} runs once around a pole; expected a ring that "
+                              "closes without circling a pole (close it along the pole's latitude instead)")
+        if ref is not None:  # a hole goes with its shell
+            x += 360.0 * np.round((ref - x.mean()) / 360.0)
+        return np.column_stack([x, xy[:, 1]])
+
+    shell = unwrap(poly.exterior)
+    width = float(np.ptp(shell[:, 0]))
+    if width > 180.0:
+        raise RegionError(f"file:{name}: polygon {k} spans {width:.0f} deg of longitude either way round; "
+                          "split it at the antimeridian (RFC 7946 sec. 3.1.9), or put its vertices at most "
+                          "180 deg of longitude apart to mean the wide way")
+    holes = [unwrap(h, float(shell[:, 0].mean())) for h in poly.interiors]
+    return Polygon(shell, holes)
 
 
 @dataclass(frozen=True, slots=True)
@@ -479,8 +710,7 @@ def resolve(region: Region | str, station: Station, base_dir: str | os.PathLike[
     reg = parse_region(region) if isinstance(region, str) else region
     disc = None
     if reg.kind == "country":
-        row = _country_index()[reg.name.lower()]
-        geom = MultiPolygon(_parts(countries().geometry.iloc[row]))
+        geom = _country_geometry(reg.name)
     elif reg.kind == "continent":
         geom = continent_geometry(reg.name)
     elif reg.kind == "circle":
@@ -497,10 +727,14 @@ def resolve(region: Region | str, station: Station, base_dir: str | os.PathLike[
                              disc.az_from_deg + disc.span_deg, disc.min_km, disc.max_km)
     if clip is not None:
         whole = geom
-        geom = MultiPolygon(_parts(geom.intersection(_clip_geometry(clip))))
-        if (geom.is_empty or _area_m2(geom) <= 0.0) and not whole.is_empty:
+        # part by part: a continent's parts (neighbouring countries) touch
+        # along borders, which a MultiPolygon may not do, so GEOS cannot
+        # intersect the whole at once
+        pieces = shapely.intersection(np.asarray(_parts(geom), dtype=object), _clip_geometry(clip))
+        geom = MultiPolygon([p for piece in pieces for p in _parts(piece)])
+        if (geom.is_empty or _areas_m2(_parts(geom)).sum() <= 0.0) and not whole.is_empty:
             raise RegionError(_clip_misses(reg.text, clip, whole))
-    if geom.is_empty or _area_m2(geom) <= 0.0:
+    if geom.is_empty or _areas_m2(_parts(geom)).sum() <= 0.0:
         raise RegionError(f"{reg.text!r}: the region is empty")
     return GoalArea(reg.text, geom, disc, clip)
 
@@ -598,7 +832,7 @@ def sample_points(area: GoalArea | BaseGeometry, n: int, seed: int = 1) -> tuple
     parts = _parts(geom)
     if not parts:
         return np.empty(0), np.empty(0)
-    areas = np.array([_area_m2(p) for p in parts])
+    areas = _areas_m2(parts)
     if areas.sum() < RESOLUTION_KM2 * 1e6:
         rp = max(zip(areas, parts), key=lambda ap: ap[0])[1].representative_point()
         return np.array([rp.x]), np.array([rp.y])

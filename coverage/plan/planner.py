@@ -95,6 +95,8 @@ class GoalRow:
     open_fraction: float
     avoid_advantage_db: float | None
     reference_gain_dbi: float | None
+    kind: str = ""                  # how the state's currents are made on this band
+    design_band: str | None = None  # as-built: the band its network is designed on
 
 
 @dataclass(frozen=True, slots=True)
@@ -250,12 +252,15 @@ def make_plan(site, goal_bands: tuple[GoalBand, ...] | None = None,
     fg = site_foreground(spec, bands)
     prepared = prepare_needs(goal_bands, ref, fg)  # shared by every option
 
-    method = "direct" if fixed else "fft"
     option_plans = []
     receive_ref: list = []  # [(reference directivity, prepared needs)], made once if any option receives
     for option in spec.options:
         patterns = {(band_name, s.name): array_pattern(spec, option, s, f)
                     for band_name, f in bands.items() for s in option.states}
+        o_thetas, o_allowed, method = thetas, allowed, ("direct" if fixed else "fft")
+        if option.n_elements == 1:
+            # one vertical has no baseline: a single bearing, whatever the lot allows
+            o_thetas, o_allowed, method = np.array([0.0]), np.array([True]), "direct"
         option_prepared, option_ref, scored = prepared, None, patterns
         opt_fg = option_foreground(spec, option, patterns, fg)
         if option.receive:
@@ -266,17 +271,19 @@ def make_plan(site, goal_bands: tuple[GoalBand, ...] | None = None,
             option_ref, option_prepared, rx_fg = receive_ref[0]
             scored = as_directivity(patterns)
             opt_fg = _foreground_directivity(opt_fg, rx_fg)
-        values, best_state = score_option(option, scored, goal_bands, option_prepared, thetas, orient.step_deg,
+        values, best_state = score_option(option, scored, goal_bands, option_prepared, o_thetas, orient.step_deg,
                                           method, opt_fg)
         weights = np.array([gb.weight * pre["open"] for gb, pre in zip(goal_bands, option_prepared)])
         open_rows = np.isfinite(values[:, 0]) & (weights > 0)
         if open_rows.any():
             score = (weights[open_rows, None] * values[open_rows]).sum(axis=0) / weights[open_rows].sum()
         else:
-            score = np.full(thetas.size, np.nan)
-        best_theta, best_score, window = _best(thetas, score, allowed)
-        option_plans.append(OptionPlan(option.name, option.layout, option.spacing_m, thetas, score,
-                                       allowed, best_theta, best_score, window, values, best_state,
+            score = np.full(o_thetas.size, np.nan)
+        best_theta, best_score, window = _best(o_thetas, score, o_allowed)
+        if option.n_elements == 1:
+            window = None
+        option_plans.append(OptionPlan(option.name, option.layout, option.spacing_m, o_thetas, score,
+                                       o_allowed, best_theta, best_score, window, values, best_state,
                                        tuple(s.name for s in option.states), patterns, option.use, option_ref,
                                        opt_fg))
     ranking = _ranking(site, goal_bands, option_plans, ref)
@@ -620,8 +627,10 @@ def goal_rows(plan_option: OptionPlan, goal_bands, theta_index: int, ref: dict) 
         if gb.avoid_needs is not None and gb.avoid_needs.weights.sum() > 0:
             aw = gb.avoid_needs.weights
             avoid_adv = float(np.sum(aw * g) / aw.sum()) - ref_of(aw)
+        res = plan_option.patterns[(gb.band_name, s_name)]
         rows.append(GoalRow(gb.goal_name, gb.path, gb.band_name, s_name, mean, p10, mean - ref_mean,
-                            float(plan_option.values_db[i, theta_index]), open_f, avoid_adv, ref_mean))
+                            float(plan_option.values_db[i, theta_index]), open_f, avoid_adv, ref_mean,
+                            getattr(res, "kind", "forced"), getattr(res, "design_band", None)))
     return tuple(rows)
 
 

@@ -34,9 +34,11 @@ import numpy as np
 from ..fileio import atomic_savefig
 from ..grid import AZIMUTH_DEG
 from ..safety import CAUTION_LINE
-from .scene import BandScene
+from ..geo.regions import _area_m2
+from .fonts import drawable, setup as _font_setup
+from .scene import BandScene, kind_label
 
-__all__ = ["projection", "save_png_palette", "PAPER_IN", "SPHERE_RADIUS_M", "RIM_KM", "draw_map", "map_figure", "outline_lines",
+__all__ = ["projection", "save_png_palette", "display_geometry", "PAPER_IN", "SPHERE_RADIUS_M", "RIM_KM", "draw_map", "map_figure", "outline_lines",
            "ADVANTAGE_RANGE_DB", "STATE_COLOURS"]
 
 PAPER_IN = {"a4": (8.27, 11.69), "letter": (8.5, 11.0)}
@@ -167,16 +169,64 @@ def _paths(proj, src, geom) -> list:
     return [] if path is None else [path]
 
 
+_NEAR_ANTIPODE_DEG = 3.0  # parts with a vertex this close to the antipode go through cartopy
+
+
+def _fast_paths(proj, src, geom) -> list:
+    """``_paths`` for a region of many parts: the parts far from the antipode
+    (and not around it)
+    are projected vertex by vertex with PROJ in one call (edges densified to
+    1 deg first, so long straight lon/lat edges still bend as they should);
+    cartopy, which cuts shapes at the antipodal rim, takes only the parts
+    near the antipode. The same map, a tenth of the time for 1:10m coasts."""
+    import shapely
+
+    parts = [p for p in getattr(geom, "geoms", [geom]) if not p.is_empty]
+    if not parts:
+        return []
+    lon0, lat0 = proj.proj4_params["lon_0"], proj.proj4_params["lat_0"]
+    to_map = _transformer(proj, src)
+    dense = shapely.segmentize(np.asarray(parts, dtype=object), 1.0)
+    xy, idx = shapely.get_coordinates(dense, return_index=True)
+    # angular distance of every vertex from the antipode (spherical law of cosines)
+    la, lo = np.radians(xy[:, 1]), np.radians(xy[:, 0])
+    cos_c = np.sin(la) * np.sin(np.radians(-lat0)) + np.cos(la) * np.cos(np.radians(-lat0)) * np.cos(
+        lo - np.radians(lon0 + 180.0))
+    near = np.zeros(len(parts), dtype=bool)
+    near[idx[cos_c > np.cos(np.radians(_NEAR_ANTIPODE_DEG))]] = True
+    alon = (lon0 + 360.0) % 360.0 - 180.0  # the antipode: a part around it wraps the rim
+    near |= shapely.contains_xy(np.asarray(parts, dtype=object), alon, -lat0)
+    out = []
+    far = [d for d, n in zip(dense, near) if not n]
+    if far:
+        projected = shapely.transform(shapely.GeometryCollection(far),
+                                      lambda c: np.column_stack(to_map.transform(c[:, 0], c[:, 1])))
+        path = _to_path(projected)
+        if path is not None:
+            out.append(path)
+    rest = [p for p, n in zip(parts, near) if n]
+    if rest:
+        out += _paths(proj, src, shapely.GeometryCollection(rest))
+    return out
+
+
+@functools.lru_cache(maxsize=8)
+def _transformer(proj, src):
+    from pyproj import Transformer
+
+    return Transformer.from_crs(src, proj, always_xy=True)
+
+
 @functools.lru_cache(maxsize=8)
 def _world(lon_deg: float, lat_deg: float):
     """Projected land fills and land outlines (matplotlib paths) for one station."""
     from shapely.geometry import MultiLineString
 
-    from ..geo.regions import countries
+    from ..geo.regions import basemap_geometries
 
     proj, src = projection(lon_deg, lat_deg)
     fills, lines = [], []
-    for geom in countries().geometry:
+    for geom in basemap_geometries():
         if geom is None or geom.is_empty:
             continue
         fills += _paths(proj, src, geom)
@@ -231,6 +281,7 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
 
     from .. import __version__ as version
 
+    _font_setup()
     w_in, h_in = PAPER_IN[paper]
     fig = plt.figure(figsize=(w_in, h_in))
     fig.patch.set_facecolor("white")
@@ -263,24 +314,26 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
     for g in scene.goals:
         closed = g.advantage_db is None
         face = CLOSED if closed else cmap(norm(g.advantage_db))
-        for p in _paths(proj, src, g.geometry):
+        shown = display_geometry(g.geometry)
+        for p in _fast_paths(proj, src, shown):
             ax.add_patch(PathPatch(p, facecolor=face, edgecolor="none", alpha=0.8, zorder=2,
                                    hatch="...." if closed else None, gid=f"goal:{g.name}"))
-        segs = outline_lines(g.geometry)
+        segs = outline_lines(shown)
         if segs:
-            for p in _paths(proj, src, MultiLineString(segs)):
+            for p in _fast_paths(proj, src, MultiLineString(segs)):
                 ax.add_patch(PathPatch(p, facecolor="none", edgecolor=INK, linewidth=0.7, zorder=2.35))
-        label_spots.append((g, _label_point(proj, src, g.geometry)))
+        label_spots.append((g, _label_point(proj, src, shown)))
 
     for a in scene.avoid:
         # the hatch takes the edge colour; the outline is stroked separately,
         # without the cuts along +-180 deg and the South Pole
-        for p in _paths(proj, src, a.geometry):
+        shown = display_geometry(a.geometry)
+        for p in _fast_paths(proj, src, shown):
             ax.add_patch(PathPatch(p, facecolor="none", edgecolor=AVOID, linewidth=0.0, hatch="xxx",
                                    zorder=2.4, gid=f"avoid:{a.region}"))
-        segs = outline_lines(a.geometry)
+        segs = outline_lines(shown)
         if segs:
-            for p in _paths(proj, src, MultiLineString(segs)):
+            for p in _fast_paths(proj, src, MultiLineString(segs)):
                 ax.add_patch(PathPatch(p, facecolor="none", edgecolor=AVOID, linewidth=0.9, zorder=2.45))
 
     # range rings, labelled along the quietest bearing
@@ -297,12 +350,14 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
         k += 1
 
     # the array baseline: a great circle through the station, bold near it
+    # (one vertical has none)
     th = scene.orientation_deg
-    x, y = _xy([th + 180.0, th], [RIM_KM, RIM_KM])
-    ax.plot([x[0], 0, x[1]], [y[0], 0, y[1]], color=INK, linewidth=0.6, linestyle=(0, (6, 3)), zorder=3.5)
-    bx, by = _xy([th + 180.0, th], [1100.0, 1100.0])
-    ax.plot(bx, by, color=INK, linewidth=2.6, solid_capstyle="butt", zorder=5, gid="baseline")
-    ax.plot([bx[1]], [by[1]], marker=(3, 0, -th), markersize=7, color=INK, zorder=5)
+    if scene.layout != "single":
+        x, y = _xy([th + 180.0, th], [RIM_KM, RIM_KM])
+        ax.plot([x[0], 0, x[1]], [y[0], 0, y[1]], color=INK, linewidth=0.6, linestyle=(0, (6, 3)), zorder=3.5)
+        bx, by = _xy([th + 180.0, th], [1100.0, 1100.0])
+        ax.plot(bx, by, color=INK, linewidth=2.6, solid_capstyle="butt", zorder=5, gid="baseline")
+        ax.plot([bx[1]], [by[1]], marker=(3, 0, -th), markersize=7, color=INK, zorder=5)
 
     _foreground(ax, scene)
 
@@ -317,6 +372,7 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
     ax.plot([0], [0], marker="o", markersize=4.5, color="white", markeredgecolor=INK, markeredgewidth=1.2,
             zorder=6)
 
+    labels = []
     for g, spot in label_spots:
         if spot is None:
             continue
@@ -325,20 +381,33 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
         else:
             value = _fmt_db(g.advantage_db)
         x, y, size_m = spot
-        offset = (0.0, 0.0)
-        leader = None
-        if size_m < 3.0e6:  # a small region: put the label beside it, away from the station, with a leader
-            rr = math.hypot(x, y) or 1.0
-            offset = (30.0 * x / rr, 30.0 * y / rr)
-            leader = dict(arrowstyle="-", linewidth=0.6, color=INK, shrinkA=0.0, shrinkB=0.0)
         name = g.name
         if g.geometry.contains(Point(scene.lon_deg, scene.lat_deg)):
             name += " (holds the station)"
-        ax.annotate(f"{name}\n{value}", (x, y), xytext=offset, textcoords="offset points", fontsize=7,
-                    ha="center", va="center", color=INK, zorder=7, linespacing=1.1, path_effects=_halo(2.5),
-                    arrowprops=leader)
+        tiny = _area_m2(g.geometry) < _TINY_M**2
+        if tiny:  # smaller than a few pixels: a marker shows where it is
+            closed = g.advantage_db is None
+            ax.plot([x], [y], marker="o", markersize=4.2, markeredgewidth=0.8, markeredgecolor=INK,
+                    color=CLOSED if closed else cmap(norm(g.advantage_db)), zorder=6.5, gid=f"goal-marker:{g.name}")
+        labels.append((drawable(f"{name}\n{value}"), x, y, size_m < 3.0e6, f"goal-label:{g.name}"))
+    for g in scene.goals:  # long-path goals: a band on the rim at their long-path bearings
+        arc = _long_path_arc(scene, g)
+        if arc is None:
+            continue
+        start, span = arc
+        t_arc = start + np.linspace(0.0, span, max(2, int(span * 2) + 2))
+        rx, ry = _xy(t_arc, np.full_like(t_arc, RIM_KM * 0.975))
+        closed = g.advantage_db is None
+        ax.plot(rx, ry, color=CLOSED if closed else cmap(norm(g.advantage_db)), linewidth=5.5,
+                solid_capstyle="butt", zorder=6.4, gid=f"long-path:{g.name}")
+        ax.plot(rx, ry, color=INK, linewidth=0.5, zorder=6.45)
+        mx, my = _xy(start + span / 2.0, RIM_KM * 0.975)
+        row = next(r for r in g.rows if r[0] == "long")
+        labels.append((drawable(f"{g.name}\nlong path {_fmt_db(row[2])}"), float(mx), float(my), True,
+                       f"long-label:{g.name}"))
+    _rim(ax)  # first: goal labels keep clear of the bearing and ring labels
+    _place_labels(fig, ax, labels)
 
-    _rim(ax)
     _title_block(fig, scene, date_text, w_in, h_in)
     _legends(fig, scene, cmap, norm, diam, bottom, w_in, h_in, Rectangle)
     fig.text(0.5, 0.42 / h_in, CAUTION_LINE, ha="center", va="center", fontsize=7.2, color="#5b2a1a")
@@ -346,6 +415,91 @@ def map_figure(scene: BandScene, date_text: str, paper: str = "a4"):
              "the station: lines from the centre are great circles, rings are great-circle distance.  "
              f"lobeplan {version}", ha="center", va="center", fontsize=6.2, color="#5f666b")
     return fig
+
+
+# a region of less than (100 km)^2 is a few pixels at most on a map 40,000 km across
+_TINY_M = 100e3
+
+
+# coasts thinned to 0.02 deg (about 2 km) for drawing: far below a pixel of
+# a map 40,000 km across (some 30 km), and it spares projecting the 1:10m
+# coasts vertex by vertex (seconds per map)
+_DRAW_TOLERANCE_DEG = 0.02
+
+
+@functools.lru_cache(maxsize=64)
+def display_geometry(geom):
+    """A region's polygons thinned for drawing; every part kept (islands too)."""
+    import shapely
+    from shapely.geometry import MultiPolygon
+    from shapely.geometry import Polygon as ShapelyPolygon
+
+    out = []
+    for part in getattr(geom, "geoms", [geom]):
+        thin = part.simplify(_DRAW_TOLERANCE_DEG, preserve_topology=True)
+        ok = isinstance(thin, ShapelyPolygon) and thin.is_valid and not thin.is_empty
+        out.append(thin if ok else part)
+    return shapely.make_valid(MultiPolygon(out)) if out else geom
+
+
+def _long_path_arc(scene: BandScene, g) -> tuple[float, float] | None:
+    """(first bearing, clockwise span) in degrees of a goal's long path, or None."""
+    if not any(r[0] == "long" for r in g.rows):
+        return None
+    from ..geo.paths import bearing_arc, goal_paths
+    from ..geo.regions import sample_points
+    from ..geo.station import Station
+
+    lons, lats = sample_points(g.geometry, 400, seed=1)
+    bearing, _ = goal_paths(Station("", scene.lat_deg, scene.lon_deg, ""), lons, lats, "long")
+    start, end, _ = bearing_arc(bearing)
+    return float(start), float((end - start) % 360.0)
+
+
+def _place_labels(fig, ax, labels) -> None:
+    """Draw goal labels so that no two overlap, nor leave the page.
+
+    ``labels`` holds (text, x, y, beside, gid) with x, y in map metres;
+    ``beside`` labels (small regions, markers, rim bands) start beside
+    their point, away from the station. Each label takes the first spot
+    of a fixed list (on the point, then rings of offsets around it, the
+    outward ones first) where its drawn box is clear of every label placed
+    before (and of the ring and bearing labels already drawn); a moved
+    label gets a leader line to its point. Regions drawn large go first,
+    so that their labels sit on them.
+    """
+    renderer = fig.canvas.get_renderer()
+    page = fig.bbox
+    placed = [t.get_window_extent(renderer) for t in ax.texts if t.get_text()]  # ring and rim labels
+
+    def clear(b) -> bool:
+        if b.x0 < page.x0 + 2 or b.y0 < page.y0 + 2 or b.x1 > page.x1 - 2 or b.y1 > page.y1 - 2:
+            return False
+        return all(b.x1 <= o.x0 or b.x0 >= o.x1 or b.y1 <= o.y0 or b.y0 >= o.y1 for o in placed)
+
+    for text, x, y, beside, gid in sorted(labels, key=lambda lab: lab[3]):  # regions first, then the rest
+        rr = math.hypot(x, y)
+        ux, uy = (x / rr, y / rr) if rr > 1.0 else (0.0, 1.0)
+        offsets = [] if beside else [(0.0, 0.0)]
+        for dist in (28.0, 40.0, 55.0, 75.0, 100.0, 130.0, 170.0):
+            for turn in (0, 40, -40, 80, -80, 120, -120, 160, -160, 180):
+                c, s_ = math.cos(math.radians(turn)), math.sin(math.radians(turn))
+                offsets.append((dist * (ux * c - uy * s_), dist * (ux * s_ + uy * c)))
+        note = ax.annotate(text, (x, y), xytext=offsets[0], textcoords="offset points", fontsize=7, ha="center",
+                           va="center", color=INK, zorder=7, linespacing=1.1, path_effects=_halo(2.5),
+                           annotation_clip=False, gid=gid)
+        chosen = offsets[0]
+        for off in offsets:
+            note.set_position(off)
+            if clear(note.get_window_extent(renderer)):
+                chosen = off
+                break
+        note.set_position(chosen)
+        placed.append(note.get_window_extent(renderer))
+        if chosen != (0.0, 0.0):  # moved off its point: a leader line back to it
+            ax.annotate("", (x, y), xytext=chosen, textcoords="offset points", zorder=6.9,
+                        arrowprops=dict(arrowstyle="-", linewidth=0.6, color=INK, shrinkA=0.0, shrinkB=0.0),
+                        annotation_clip=False)
 
 
 FOREGROUND_COLOURS = ("#2f7fb8", "#b08a1f", "#4f8f4f", "#8a4f9a")
@@ -382,10 +536,12 @@ def _label_point(proj, src, geom):
     x, y = proj.transform_point(pt.x, pt.y, src)
     if not (np.isfinite(x) and np.isfinite(y)):
         return None
-    projected = proj.project_geometry(geom, src)
-    if projected.is_empty:
+    paths = _fast_paths(proj, src, geom)
+    if not paths:
         return None
-    x0, y0, x1, y1 = projected.bounds
+    verts = np.concatenate([p.vertices for p in paths])
+    x0, y0 = verts.min(axis=0)
+    x1, y1 = verts.max(axis=0)
     return float(x), float(y), float(max(x1 - x0, y1 - y0))
 
 
@@ -406,23 +562,93 @@ def _title_block(fig, scene: BandScene, date_text: str, w_in: float, h_in: float
         return 1.0 - y_from_top_in / h_in
 
     x0 = 0.6 / w_in
-    fig.text(x0, at(0.55), f"{scene.station_name}", fontsize=15, fontweight="bold", color=INK, va="baseline")
-    fig.text(1 - x0, at(0.55), scene.band, fontsize=20, fontweight="bold", color=STATE_COLOURS[0],
-             ha="right", va="baseline")
+    band = fig.text(1 - x0, at(0.55), drawable(scene.band), fontsize=20, fontweight="bold", color=STATE_COLOURS[0],
+                    ha="right", va="baseline")
+    band_in = band.get_window_extent(fig.canvas.get_renderer()).width / fig.dpi
+    _fit_title(fig, drawable(f"{scene.station_name}"), x0, at(0.55), w_in - 2 * 0.6 - band_in - 0.3)
     lat = f"{abs(scene.lat_deg):.2f}°{'N' if scene.lat_deg >= 0 else 'S'}"
     lon = f"{abs(scene.lon_deg):.2f}°{'E' if scene.lon_deg >= 0 else 'W'}"
     spacing = "" if scene.spacing_m is None else f", {scene.spacing_m:.2f} m spacing"
     score = "" if scene.score_db is None else f"; score {scene.score_db:+.2f} dB over one vertical"
     # a default option name already says layout and spacing ("pair 10.5 m")
     what = scene.option if scene.option.startswith(scene.layout) else f"{scene.option} ({scene.layout}{spacing})"
-    fig.text(x0, at(0.86), f"{scene.locator}  ·  {lat} {lon}  ·  {what}  ·  "
-             f"baseline along {scene.orientation_deg:.1f}°{score}", fontsize=8.3, color=INK, va="baseline")
+    width_in = w_in - 2 * 0.6
+    y = 0.86
+    where = "one vertical, no baseline" if scene.layout == "single" else f"baseline along {scene.orientation_deg:.1f}°"
+    y = _fit_line(fig, drawable(f"{scene.locator}  ·  {lat} {lon}  ·  {what}  ·  "
+                                f"{where}{score}"), x0, y, width_in, h_in)
     how = ("median takeoff angle the goals need on this band" if scene.takeoff_from_needs
            else "no goal opens on this band: elevation of the first state's peak")
+    y = _fit_line(fig, f"Lobes at {scene.takeoff_deg:.0f}° takeoff ({how})  ·  {date_text}", x0, y + 0.22,
+                  width_in, h_in)
     prop = scene.propagation_text or f"propagation model: {scene.model}"
-    fig.text(x0, at(1.08), f"Lobes at {scene.takeoff_deg:.0f}° takeoff ({how})  ·  {date_text}",
-             fontsize=8.3, color=INK, va="baseline")
-    fig.text(x0, at(1.30), prop[:1].upper() + prop[1:], fontsize=8.3, color=INK, va="baseline")
+    _fit_line(fig, drawable(prop[:1].upper() + prop[1:]), x0, y + 0.22, width_in, h_in)
+
+
+def _fit_title(fig, text: str, x0: float, y: float, width_in: float) -> None:
+    """The station name in bold, 15 pt, shrunk to fit beside the band name
+    (down to 9 pt), then wrapped upward at words."""
+    import textwrap
+
+    t = fig.text(x0, y, text, fontsize=15, fontweight="bold", color=INK, va="baseline", gid="title")
+    r = fig.canvas.get_renderer()
+    pt = 15.0
+    while pt > 9.0 and t.get_window_extent(r).width / fig.dpi > width_in:
+        pt -= 0.5
+        t.set_fontsize(pt)
+    w = t.get_window_extent(r).width / fig.dpi
+    if w > width_in:
+        t.set_text("\n".join(textwrap.wrap(text, max(10, int(len(text) * width_in / w)))))
+        t.set_va("bottom")  # the lines grow upward, into the top margin
+        t.set_linespacing(1.05)
+
+
+def _fit_line(fig, text: str, x0: float, y_in: float, width_in: float, h_in: float,
+              size: float = 8.3, least: float = 7.0) -> float:
+    """Write a subtitle line that fits the page: shrunk down to ``least`` pt,
+    then wrapped at the "·" separators (or words). Returns the top offset
+    (inches) of its last line, so the next line goes below it."""
+    import textwrap
+
+    r = fig.canvas.get_renderer()
+    probe = fig.text(0, 0, "", fontsize=size)
+
+    def width(t: str, pt: float) -> float:
+        probe.set_text(t)
+        probe.set_fontsize(pt)
+        return probe.get_window_extent(r).width / fig.dpi
+
+    pt = size
+    while pt > least and width(text, pt) > width_in:
+        pt -= 0.1
+    lines = [text]
+    if width(text, pt) > width_in:
+        pieces = text.split("  ·  ")
+        lines = [pieces[0]]
+        for piece in pieces[1:]:
+            trial = lines[-1] + "  ·  " + piece
+            if width(trial, pt) <= width_in:
+                lines[-1] = trial
+            else:
+                lines.append(piece)
+        fitted = []
+        for ln in lines:  # a single piece still too long: by words
+            chars = max(10, int(len(ln) * width_in / max(width(ln, pt), 1e-6)))
+            fitted += textwrap.wrap(ln, chars) if width(ln, pt) > width_in else [ln]
+        lines = fitted
+    probe.remove()
+    step = pt * 1.3 / 72.0
+    for i, ln in enumerate(lines):
+        fig.text(x0, 1.0 - (y_in + i * step) / h_in, ln, fontsize=pt, color=INK, va="baseline",
+                 gid="subtitle" if i == 0 else f"subtitle-{i + 1}")
+    return y_in + (len(lines) - 1) * step
+
+
+def _short_kind(lobe) -> str:
+    """Legend wording of how a state's currents are made (the long form is :func:`kind_label`)."""
+    if lobe.kind == "as-built":
+        return f"{lobe.design_band} network"
+    return kind_label(lobe.kind, lobe.design_band)
 
 
 def _legends(fig, scene: BandScene, cmap, norm, diam: float, map_bottom: float, w_in: float, h_in: float,
@@ -469,15 +695,25 @@ def _legends(fig, scene: BandScene, cmap, norm, diam: float, map_bottom: float, 
     handles = []
     for i, lobe in enumerate(scene.lobes):
         col = STATE_COLOURS[i % len(STATE_COLOURS)]
+        how = "one element" if scene.layout == "single" else _short_kind(lobe)
+        toward = ("all round" if not lobe.lobes_deg
+                  else "toward " + "/".join(f"{b:.0f}°" for b in lobe.lobes_deg))
         handles.append(Patch(facecolor=col, alpha=0.45, edgecolor=col,
-                             label=f"{lobe.state}: {lobe.peak_gain_dbi:.1f} dBi toward {lobe.peak_bearing_deg:.0f}°"))
-    handles.append(Line2D([], [], color=INK, linewidth=2.6, label=f"baseline, along {scene.orientation_deg:.0f}°"))
+                             label=f"{lobe.state} ({how}): {lobe.peak_gain_dbi:.1f} dBi {toward}"))
+    if scene.layout != "single":
+        handles.append(Line2D([], [], color=INK, linewidth=2.6, label=f"baseline, along {scene.orientation_deg:.0f}°"))
     if scene.avoid:
         handles.append(Patch(facecolor="none", edgecolor=AVOID, hatch="xxx", label="keep in the rear (avoid)"))
     if any(g.advantage_db is None for g in scene.goals):
         handles.append(Patch(facecolor=CLOSED, hatch="....",
                              label=f"goal closed on this band (open < {100 * scene.closed_share:.0f} % of "
                                    "its point-hours)"))
+    if any(_area_m2(g.geometry) < _TINY_M**2 for g in scene.goals):
+        handles.append(Line2D([], [], linestyle="none", marker="o", markersize=4.2, markeredgecolor=INK,
+                              color=LAND, label="goal too small to shade: a marker"))
+    if any(r[0] == "long" for g in scene.goals for r in g.rows):
+        handles.append(Line2D([], [], color=RING, linewidth=5.5, solid_capstyle="butt",
+                              label="band on the rim: a goal's long-path bearings"))
     fig.legend(handles=handles, loc="upper left", bbox_to_anchor=(4.55 / w_in, (y_top + 0.28) / h_in),
                fontsize=7.2, frameon=False, title="Switch states (lobes)", title_fontsize=8,
                alignment="left", handlelength=1.6)

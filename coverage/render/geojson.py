@@ -7,7 +7,9 @@ GIS opens:
   lies along b from the station at the map's radius taken as a WGS84
   geodesic distance (the map itself draws it on a 6371 km sphere):
   ``lobe_peak_km`` at the band's peak gain, falling linearly in dB to the
-  station at ``lobe_floor_db`` below it.
+  station at ``lobe_floor_db`` below it. ``lobes_deg`` lists every lobe
+  within 1 dB of the state's peak (strongest first); ``state_kind`` is
+  "forced", "as-built" (from its ``design_band`` network) or "fed".
 - ``kind = "goal"``: the goal region with, for every band and path, the
   state that serves it and its advantage over one vertical.
 - ``kind = "avoid"``: the regions to keep in the rear.
@@ -201,8 +203,11 @@ def plan_geojson(site, plan) -> dict:
                 continue
             features.append(_feature({"type": "MultiPolygon", "coordinates": _coords(geom)}, {
                 "kind": "lobe", "band": scene.band, "option": scene.option, "state": lobe.state,
-                "orientation_deg": _r(scene.orientation_deg, 1), "takeoff_deg": _r(scene.takeoff_deg, 1),
+                "orientation_deg": None if scene.layout == "single" else _r(scene.orientation_deg, 1),
+                "takeoff_deg": _r(scene.takeoff_deg, 1),
                 "peak_gain_dbi": _r(lobe.peak_gain_dbi, 2), "peak_bearing_deg": _r(lobe.peak_bearing_deg, 1),
+                "state_kind": lobe.kind, "design_band": lobe.design_band,
+                "lobes_deg": [_r(b, 1) for b in lobe.lobes_deg],
                 "scale_peak_km": _r(scene.lobe_peak_km, 1), "scale_floor_db": _r(scene.lobe_floor_db, 1),
                 "scale_top_dbi": _r(scene.lobe_top_dbi, 2)}))
         for g in scene.goals:
@@ -224,7 +229,8 @@ def plan_geojson(site, plan) -> dict:
     st = site.station
     props = {"kind": "station", "name": st.name, "locator": st.locator, "ground": site.array.ground.name}
     if first is not None:
-        props.update({"option": first.option, "orientation_deg": _r(first.orientation_deg, 1),
+        props.update({"option": first.option,
+                      "orientation_deg": None if first.layout == "single" else _r(first.orientation_deg, 1),
                       "score_db": _r(first.score_db, 2)})
     features.append(_feature({"type": "Point", "coordinates": [round(float(st.lon_deg), _DIGITS),
                                                                round(float(st.lat_deg), _DIGITS)]}, props))

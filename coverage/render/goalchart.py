@@ -37,6 +37,7 @@ import numpy as np
 
 from ..fileio import atomic_savefig
 from .azimap import ADVANTAGE_RANGE_DB, INK, STATE_COLOURS, _advantage_cmap, _halo
+from .fonts import drawable, setup as _font_setup
 
 __all__ = ["band_figure", "draw_band_figure", "goal_spans", "STATE_STYLES", "SHADE_RANGE_DB"]
 
@@ -60,6 +61,7 @@ def _pyplot():
     matplotlib.use("Agg", force=False)
     import matplotlib.pyplot as plt
 
+    _font_setup()  # names in any script: fall back through the installed fonts
     return plt
 
 
@@ -210,7 +212,7 @@ def band_figure(rows: list[dict], station_name: str = "", foreground=()):
                               fig.dpi)
             if y > el["p90"] + 1.0:  # raised past another label: a leader down to its box
                 ax.plot([x, x], [el["p90"], y], color=INK, linewidth=0.5, zorder=4.5)
-            ax.text(x, y, text, ha="center", va="bottom", fontsize=_BOX_TEXT,
+            ax.text(x, y, drawable(text), ha="center", va="bottom", fontsize=_BOX_TEXT,
                     color=INK, zorder=5, path_effects=_halo(), clip_on=True)
         _foreground_strip(ax, foreground, y_top)
         ax.set_xlim(0.0, 360.0)
@@ -220,8 +222,8 @@ def band_figure(rows: list[dict], station_name: str = "", foreground=()):
         ax.set_yticks(range(0, int(y_top) + 1, 15))
         ax.tick_params(labelsize=7)
         ax.set_ylabel("takeoff angle, °", fontsize=7.5)
-        ax.set_title(f"{row['state']}: peak {row['peak_gain_dbi']:.1f} dBi toward {row['peak_azimuth_deg']:.0f}° "
-                     f"at {row['peak_elevation_deg']:.0f}°", fontsize=8.5, loc="left", color=INK)
+        ax.set_title(drawable(f"{row['state']}: peak {row['peak_gain_dbi']:.1f} dBi toward {row['peak_azimuth_deg']:.0f}° "
+                     f"at {row['peak_elevation_deg']:.0f}°"), fontsize=8.5, loc="left", color=INK)
         if i == n - 1:
             ax.set_xlabel("true bearing, ° (clockwise from north)", fontsize=7.5)
     cax = fig.add_subplot(gs[:, 1])
@@ -240,7 +242,7 @@ def band_figure(rows: list[dict], station_name: str = "", foreground=()):
         for lo, hi in goal_spans(goal["bearing_deg"]["start"], goal["bearing_deg"]["end"]):
             ax_az.axvspan(lo, hi, color="#e4dcf2", alpha=0.55, linewidth=0, zorder=0)
         mid = goal["bearing_deg"]["median"]
-        ax_az.text(mid, 0.985, label, transform=ax_az.get_xaxis_transform(), rotation=90, ha="center",
+        ax_az.text(mid, 0.985, drawable(label), transform=ax_az.get_xaxis_transform(), rotation=90, ha="center",
                    va="top", fontsize=6.2, color="#4a3f66", zorder=1)
     peak = -np.inf
     for i, (row, s) in enumerate(zip(rows, shown)):
@@ -277,7 +279,7 @@ def band_figure(rows: list[dict], station_name: str = "", foreground=()):
         y = 1.0 - line * (k + 0.8)
         ax_el.plot([g["elevation_deg"]["p10"], g["elevation_deg"]["p90"]], [y, y], color="#7b6aa6",
                    linewidth=2.2, solid_capstyle="butt", transform=along_top)
-        ax_el.text(g["elevation_deg"]["p90"] + 0.8, y, label, fontsize=6.0, va="center", color="#4a3f66",
+        ax_el.text(g["elevation_deg"]["p90"] + 0.8, y, drawable(label), fontsize=6.0, va="center", color="#4a3f66",
                    transform=along_top)
     if takeoff is not None:
         ax_el.axvline(takeoff, color=INK, linewidth=0.7, linestyle=(0, (1, 2)))
@@ -295,8 +297,10 @@ def band_figure(rows: list[dict], station_name: str = "", foreground=()):
     where = {"plan": "the plan's best bearing", "site": "from the site file",
              "none": "no goal is open"}.get(first.get("orientation_from"), "")
     head = f"{station_name}: " if station_name else ""
-    fig.suptitle(f"{head}{first['band']}, {first['option']}, baseline along {first['orientation_deg']:.1f}° "
-                 f"({where})" + ("; receive option" if receive else ""), fontsize=10.5, color=INK, x=0.06,
+    along = ("one vertical, no baseline" if len(first.get("element_currents", ())) == 1
+             else f"baseline along {first['orientation_deg']:.1f}° ({where})")
+    fig.suptitle(drawable(f"{head}{first['band']}, {first['option']}, {along}"
+                          + ("; receive option" if receive else "")), fontsize=10.5, color=INK, x=0.06,
                  ha="left")
     what = ("advantage in directivity (over the sky mean) over one vertical" if receive
             else "advantage over one vertical")

@@ -13,6 +13,7 @@ score against baseline bearing.
 """
 from __future__ import annotations
 
+import math
 from pathlib import Path
 
 import numpy as np
@@ -20,6 +21,8 @@ import numpy as np
 from ..fileio import atomic_savefig
 from ..grid import ELEVATION_DEG
 from .azimap import INK, STATE_COLOURS
+from ..antenna.pattern import lobe_bearings_deg
+from .fonts import drawable, setup as _font_setup
 from .scene import chosen_option, key_takeoff_deg, true_bearing_row
 
 __all__ = ["elevation_figure", "orientation_figure", "draw_elevation_panel", "draw_orientation_panel",
@@ -36,6 +39,7 @@ def _pyplot():
     matplotlib.use("Agg", force=False)
     import matplotlib.pyplot as plt
 
+    _font_setup()
     return plt
 
 
@@ -45,6 +49,7 @@ def elevation_figure(site, plan):
     op, theta, _ = chosen_option(plan)
     bands = [b.name for b in site.bands]
     fig, axes = plt.subplots(len(bands), 1, figsize=(10.0, 0.6 + 2.5 * len(bands)), squeeze=False)
+    widest = 1
     for ax, band in zip(axes[:, 0], bands):
         takeoff = key_takeoff_deg(plan.goal_bands, band)
         need_ax = ax.twinx()
@@ -86,21 +91,25 @@ def elevation_figure(site, plan):
         for i, s_name in enumerate(op.state_names):
             g = op.patterns[(band, s_name)].gain_dbi
             el = int(round(takeoff)) if takeoff is not None else int(np.unravel_index(np.argmax(g), g.shape)[0])
+            res = op.patterns[(band, s_name)]
+            how = "" if getattr(res, "kind", "forced") != "as-built" else f", as built ({res.design_band} network)"
             if op.foreground:  # the blended grid is already over true bearings
                 from ..plan.planner import true_gain_dbi
 
                 tg = true_gain_dbi(op, band, s_name, theta)
-                bearing = int(np.argmax(tg[el]))
+                every = lobe_bearings_deg(tg[el])   # ties broken the same way on every machine
+                bearing = int(round(every[0][0])) % 360 if every else int(np.argmax(tg[el]))
                 cut = tg[:, bearing]
             else:
                 row = true_bearing_row(g, el, theta)
-                bearing = int(np.argmax(row))
+                every = lobe_bearings_deg(row)
+                bearing = int(round(every[0][0])) % 360 if every else int(np.argmax(row))
                 frame_az = (bearing - theta) % 360.0
                 cut = np.array([np.interp(frame_az, np.arange(360.0), g[e], period=360.0)
                                 for e in range(ELEVATION_DEG.size)])
             peak = max(peak, float(cut.max()))
             ax.plot(ELEVATION_DEG, cut, color=STATE_COLOURS[i % len(STATE_COLOURS)], linewidth=1.6,
-                    label=f"{s_name} toward {bearing}°", gid=f"cut:{band}:{s_name}")
+                    label=f"{s_name} toward {bearing}°{how}", gid=f"cut:{band}:{s_name}")
         ax.set_ylim(peak - 25.0, peak + 3.0)
         ax.set_xlim(0.0, 90.0)
         if takeoff is not None:
@@ -109,15 +118,21 @@ def elevation_figure(site, plan):
         ax.set_ylabel("gain, dBi", fontsize=8)
         ax.tick_params(labelsize=7)
         ax.grid(True, color="#d8d8d8", linewidth=0.5)
-        ax.set_title(f"{band}: {op.option}, baseline along {theta:.1f}°", fontsize=9, loc="left", color=INK)
+        where = "one vertical, no baseline" if op.layout == "single" else f"baseline along {theta:.1f}°"
+        ax.set_title(f"{band}: {op.option}, {where}", fontsize=9, loc="left", color=INK)
         h1, l1 = ax.get_legend_handles_labels()
         h2, l2 = need_ax.get_legend_handles_labels()
-        ax.legend(h1 + h2, l1 + l2, fontsize=6.8, loc="upper left", bbox_to_anchor=(1.08, 1.0), frameon=False)
+        # many goals: more legend columns (about 16 entries fit beside a row), and a wider page for them
+        ncol = max(1, math.ceil(len(l1 + l2) / 16))
+        widest = max(ncol, widest)
+        ax.legend(h1 + h2, [drawable(t) for t in l1 + l2], fontsize=6.8, loc="upper left", bbox_to_anchor=(1.08, 1.0),
+                  frameon=False, ncol=ncol)
     axes[-1, 0].set_xlabel("elevation (takeoff angle), degrees", fontsize=8)
     from .scene import propagation_text
 
-    fig.suptitle(f"{site.station.name}: elevation cuts through each state's beam, with the goals' needs\n"
-                 f"{propagation_text(site)}", fontsize=10, color=INK)
+    fig.suptitle(drawable(f"{site.station.name}: elevation cuts through each state's beam, with the goals' needs\n"
+                          f"{propagation_text(site)}"), fontsize=10, color=INK)
+    fig.set_figwidth(10.0 + 2.6 * (widest - 1))
     fig.tight_layout(rect=(0, 0, 1, 0.98))
     return fig
 
@@ -139,7 +154,7 @@ def orientation_figure(site, plan):
     ax = fig.add_axes([0.11, 0.15, 0.78, 0.70], projection="polar")
     ax.set_theta_zero_location("N")
     ax.set_theta_direction(-1)
-    finite = [op.score_db[np.isfinite(op.score_db)] for op in plan.options]
+    finite = [op.score_db[np.isfinite(op.score_db)] for op in plan.options if op.layout != "single"]
     values = np.concatenate(finite) if finite else np.array([0.0])
     if values.size == 0:
         values = np.array([0.0])
@@ -153,6 +168,8 @@ def orientation_figure(site, plan):
         ax.fill_between(t, lo, hi, color=ALLOWED, alpha=0.7, linewidth=0, zorder=0, gid=f"allowed:{i}",
                         label="the lot allows" if i == 0 else None)
     for i, op in enumerate(plan.options):
+        if op.layout == "single":   # one vertical has no bearing to sweep
+            continue
         col = OPTION_COLOURS[i % len(OPTION_COLOURS)]
         sp = "" if op.spacing_m is None else f", {op.spacing_m:.2f} m"
         if op.best_orientation_deg is not None:
@@ -171,7 +188,7 @@ def orientation_figure(site, plan):
     ax.tick_params(axis="y", labelsize=7)
     ax.set_rlabel_position(100)
     ax.grid(True, color="#cfcfcf", linewidth=0.5)
-    fig.text(0.5, 0.955, f"{site.station.name}: score against baseline bearing", ha="center", fontsize=10.5,
+    fig.text(0.5, 0.955, drawable(f"{site.station.name}: score against baseline bearing"), ha="center", fontsize=10.5,
              color=INK, fontweight="bold")
     fig.text(0.5, 0.925, "radius: mean advantage over one vertical, dB (weighted over the goals); "
              "\u2605 best allowed bearing", ha="center", fontsize=7.5, color=INK)

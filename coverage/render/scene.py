@@ -14,8 +14,8 @@ import numpy as np
 
 from ..grid import AZIMUTH_DEG, ELEVATION_DEG, to_true_bearing
 
-__all__ = ["Lobe", "GoalShade", "AvoidShade", "ForegroundShade", "BandScene", "band_scene", "chosen_option", "propagation_text",
-           "key_takeoff_deg", "true_bearing_row", "lobe_radius_km", "slug"]
+__all__ = ["Lobe", "GoalShade", "AvoidShade", "ForegroundShade", "BandScene", "band_scene", "chosen_option",
+           "propagation_text", "key_takeoff_deg", "true_bearing_row", "lobe_radius_km", "slug", "kind_label"]
 
 
 @dataclass(frozen=True)
@@ -32,6 +32,9 @@ class Lobe:
     radius_km: np.ndarray
     peak_gain_dbi: float
     peak_bearing_deg: float
+    kind: str = "forced"
+    design_band: str | None = None
+    lobes_deg: tuple[float, ...] = ()   # every lobe within 1 dB of the peak, strongest first
 
 
 @dataclass(frozen=True)
@@ -96,6 +99,15 @@ class BandScene:
     @property
     def lobe_top_dbi(self) -> float:
         return max(lobe.peak_gain_dbi for lobe in self.lobes)
+
+
+def kind_label(kind: str, design_band: str | None = None) -> str:
+    """How a state's currents are made on a band, in words (one wording everywhere)."""
+    if kind == "as-built":
+        return f"as built from the {design_band} network"
+    if kind == "fed":
+        return "its own lines"
+    return "forced"
 
 
 def slug(band_name: str) -> str:
@@ -165,9 +177,18 @@ def band_scene(site, plan, band_name: str) -> BandScene:
 
     rows_g = [_state_row(op, band_name, s, takeoff, theta) for s in op.state_names]
     top = max(float(r.max()) for r in rows_g)
-    lobes = tuple(Lobe(s, r, lobe_radius_km(r, top, site.map.lobe_floor_db, site.map.lobe_peak_km),
-                       float(r.max()), float(AZIMUTH_DEG[int(np.argmax(r))]))
-                  for s, r in zip(op.state_names, rows_g))
+    from ..antenna.pattern import lobe_bearings_deg
+
+    lobes = []
+    for s, r in zip(op.state_names, rows_g):
+        res = op.patterns[(band_name, s)]
+        every = lobe_bearings_deg(r)
+        # the peak bearing is the first lobe's (ties broken the same on every machine)
+        peak_bearing = every[0][0] if every else float(AZIMUTH_DEG[int(np.argmax(r))])
+        lobes.append(Lobe(s, r, lobe_radius_km(r, top, site.map.lobe_floor_db, site.map.lobe_peak_km),
+                          float(r.max()), float(peak_bearing), getattr(res, "kind", "forced"),
+                          getattr(res, "design_band", None), tuple(b for b, _ in every)))
+    lobes = tuple(lobes)
 
     if entry is not None:
         goal_rows = entry.goals

@@ -25,7 +25,9 @@ def site_path(args) -> Path:
 
 
 def default_out(args) -> str:
-    return "maps"
+    # a folder of its own, so that a run inside the checkout never rewrites
+    # the committed gallery in maps/ (that takes an explicit --out maps)
+    return "lobeplan-demo"
 
 
 def build(site, args) -> dict:

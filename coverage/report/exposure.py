@@ -6,6 +6,7 @@ import math
 from ..antenna.pattern import array_pattern, pattern_figures
 from ..errors import UsageError
 from ..safety import CAUTIONS, EXPOSURE_NOTES, exposure_distance
+from .widths import width
 
 __all__ = ["add_arguments", "check_arguments", "build", "format_text", "peak_gain_by_band"]
 
@@ -77,13 +78,14 @@ def build(site, args) -> dict:
 
 
 def format_text(result: dict) -> str:
+    w = width(8, (r["band"] for r in result["exposure"]))
     out = [f"RF exposure, far-field estimate: {result['power_w']:g} W at duty cycle {result['duty_cycle']:g}", "",
-           f"  {'band':<8} {'MHz':>7} {'peak dBi':>9} {'EIRP W':>9} {'controlled m':>13} {'uncontrolled m':>15}"
+           f"  {'band':<{w}} {'MHz':>7} {'peak dBi':>9} {'EIRP W':>9} {'controlled m':>13} {'uncontrolled m':>15}"
            f"  strongest state"]
     for r in result["exposure"]:
         flag_c = "*" if r["controlled_in_near_field"] else " "
         flag_u = "*" if r["uncontrolled_in_near_field"] else " "
-        out.append(f"  {r['band'][:8]:<8} {r['freq_mhz']:7.3f} {r['peak_gain_dbi']:9.2f} {r['eirp_w']:9.0f}"
+        out.append(f"  {r['band']:<{w}} {r['freq_mhz']:7.3f} {r['peak_gain_dbi']:9.2f} {r['eirp_w']:9.0f}"
                    f" {r['controlled_distance_m']:12.1f}{flag_c} {r['uncontrolled_distance_m']:14.1f}{flag_u}"
                    f"  {r['option']}: {r['state']}")
     if any(r["controlled_in_near_field"] or r["uncontrolled_in_near_field"] for r in result["exposure"]):

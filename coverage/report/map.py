@@ -11,6 +11,7 @@ import re
 from pathlib import Path
 
 from ..errors import UsageError
+from .widths import width
 
 __all__ = ["add_arguments", "check_arguments", "default_out", "build", "format_text", "write_files",
            "map_date", "FORMATS", "PAPERS", "DEFAULT_DPI", "map_file_name", "write_plan_figures"]
@@ -96,7 +97,9 @@ def build(site, args) -> dict:
             "takeoff_deg": _r(sc.takeoff_deg, 1),
             "takeoff_from": "needs" if sc.takeoff_from_needs else "pattern peak",
             "lobes": [{"state": lobe.state, "peak_gain_dbi": _r(lobe.peak_gain_dbi),
-                       "peak_bearing_deg": _r(lobe.peak_bearing_deg, 1)} for lobe in sc.lobes],
+                       "peak_bearing_deg": _r(lobe.peak_bearing_deg, 1), "kind": lobe.kind,
+                       "design_band": lobe.design_band, "lobes_deg": [_r(b, 1) for b in lobe.lobes_deg]}
+                      for lobe in sc.lobes],
             "goals": [{"goal": g.name, "region": g.region,
                        "paths": [{"path": p, "state": s or None, "advantage_db": _r(a), "open_fraction": _r(o, 3)}
                                  for p, s, a, o in g.rows]} for g in sc.goals],
@@ -108,7 +111,7 @@ def build(site, args) -> dict:
         "station": {"name": st.name, "locator": st.locator, "lat_deg": _r(st.lat_deg, 6),
                     "lon_deg": _r(st.lon_deg, 6)},
         "option": first.option if first else None,
-        "orientation_deg": _r(first.orientation_deg, 1) if first else None,
+        "orientation_deg": _r(first.orientation_deg, 1) if first and first.layout != "single" else None,
         "score_db": _r(first.score_db) if first else None,
         "format": fmt,
         "paper": getattr(args, "paper", "a4") or "a4",
@@ -120,13 +123,24 @@ def build(site, args) -> dict:
 
 def format_text(result: dict) -> str:
     st = result["station"]
-    out = [f"Maps for {st['name']} ({st['locator']}): {result['option']}, baseline along "
-           f"{result['orientation_deg']:.1f}°", ""]
-    out.append(f"  {'band':<8} {'takeoff':>7}  {'file':<24} lobes (peak dBi toward bearing)")
+    where = ("one vertical, no baseline" if result["orientation_deg"] is None
+             else f"baseline along {result['orientation_deg']:.1f}°")
+    out = [f"Maps for {st['name']} ({st['locator']}): {result['option']}, {where}", ""]
+    w = width(8, (m["band"] for m in result["maps"]))
+    wf = width(24, (m["file"] for m in result["maps"]))
+    out.append(f"  {'band':<{w}} {'takeoff':>7}  {'file':<{wf}} lobes (peak dBi toward bearing)")
     for m in result["maps"]:
-        lobes = ", ".join(f"{lo['state']} {lo['peak_gain_dbi']:+.1f} @ {lo['peak_bearing_deg']:.0f}°"
+        lobes = ", ".join(f"{lo['state']}{'' if lo['kind'] != 'as-built' else ' (as built)'} "
+                          f"{lo['peak_gain_dbi']:+.1f} @ "
+                          + ("/".join(f"{b:.0f}°" for b in lo["lobes_deg"]) or "all round")
                           for lo in m["lobes"])
-        out.append(f"  {m['band'][:8]:<8} {m['takeoff_deg']:>6.0f}°  {m['file']:<24} {lobes}")
+        out.append(f"  {m['band']:<{w}} {m['takeoff_deg']:>6.0f}°  {m['file']:<{wf}} {lobes}")
+    built = sorted({lo["design_band"] for m in result["maps"] for lo in m["lobes"] if lo["kind"] == "as-built"})
+    if built:
+        out.append("")
+        out.append("  (as built): the currents the state's network, designed on " + ", ".join(built)
+                   + ", delivers on that band (coupling, line loss, fixed parts).")
+    out.append("  Bearings after @: every lobe within 1 dB of the state's peak at the takeoff angle, strongest first.")
     return "\n".join(out) + "\n"
 
 
@@ -158,6 +172,7 @@ def write_plan_figures(site, plan, args, out_dir) -> list[Path]:
     written = [draw_map(band_scene(site, plan, b.name), out / map_file_name(b.name), date_text, "a4", DEFAULT_DPI)
                for b in site.bands]
     written.append(draw_elevation_panel(site, plan, out / "elevation.png"))
-    written.append(draw_orientation_panel(site, plan, out / "orientation.png"))
+    if any(op.layout != "single" for op in plan.options):   # one vertical: no bearing to sweep
+        written.append(draw_orientation_panel(site, plan, out / "orientation.png"))
     written.append(write_geojson(site, plan, out / "plan.geojson"))
     return written

@@ -3,6 +3,7 @@ from __future__ import annotations
 
 from ..plan.planner import needs_for_site
 from ..progress import ProgressBar
+from .widths import width
 
 __all__ = ["SITE_SECTIONS", "build", "build_from_goal_bands", "format_text"]
 
@@ -73,19 +74,20 @@ def format_text(result: dict) -> str:
         return "    -" if x is None else f"{x:5.1f}"
 
     lines = [f"Takeoff-angle needs ({result['model']} model)", ""]
+    w = width(26, (r["goal"] for r in result["needs"]))
     bands: list[str] = []
     for row in result["needs"]:
         if row["band"] not in bands:
             bands.append(row["band"])
     for band in bands:
         lines.append(f"{band}")
-        lines.append(f"  {'goal':<26} {'path':<5} {'open':>5}  {'p10':>5} {'median':>6} {'p90':>5}"
+        lines.append(f"  {'goal':<{w}} {'path':<5} {'open':>5}  {'p10':>5} {'median':>6} {'p90':>5}"
                      f"  {'open UT hours':<24} modes (share @ median elevation deg)")
         for row in (r for r in result["needs"] if r["band"] == band):
             e = row["elevation_deg"]
             share = row["open_fraction"]
             open_text = "  <1%" if 0 < share < 0.005 else f"{100 * share:4.0f}%"
-            lines.append(f"  {row['goal'][:26]:<26} {row['path']:<5} {open_text}"
+            lines.append(f"  {row['goal']:<{w}} {row['path']:<5} {open_text}"
                          f"  {fmt(e['p10'])} {fmt(e['median']):>6} {fmt(e['p90'])}"
                          f"  {_hour_ranges(row['open_hours_utc']):<24} {_mode_text(row['modes'])}")
         lines.append("")

@@ -4,9 +4,10 @@ from __future__ import annotations
 import numpy as np
 
 from ..geo.paths import bearing_arc, goal_paths
-from ..geo.regions import goal_points, region_area
+from ..geo.regions import goal_points, parse_region, region_area
+from .widths import width
 
-__all__ = ["SITE_SECTIONS", "build", "format_text", "goal_path_rows"]
+__all__ = ["SITE_SECTIONS", "build", "format_text", "goal_path_rows", "region_notes"]
 
 SITE_SECTIONS = ("station", "goal")  # [array] is not used here
 
@@ -31,26 +32,42 @@ def goal_path_rows(site) -> list[dict]:
     return rows
 
 
+def region_notes(site) -> list[str]:
+    """What alternative country names in the goals were taken to mean ("England" -> the United Kingdom)."""
+    notes = []
+    for goal in site.goals:
+        for text in (goal.region, *goal.avoid):
+            reg = parse_region(text)
+            if reg.note:
+                notes.append(f"{goal.name}: {text}: {reg.note}")
+    return list(dict.fromkeys(notes))
+
+
 def build(site, args=None) -> dict:
     st = site.station
-    return {
+    out = {
         "station": {"lat_deg": round(st.lat_deg, 6), "lon_deg": round(st.lon_deg, 6), "locator": st.locator},
         "points_per_goal": site.propagation.points_per_goal,
         "goals": goal_path_rows(site),
     }
+    notes = region_notes(site)
+    if notes:
+        out["notes"] = notes
+    return out
 
 
 def format_text(result: dict) -> str:
     st = result["station"]
+    w = width(28, (g["name"] for g in result["goals"]))
     lines = [f"Great-circle paths from {st['locator']} ({st['lat_deg']:.4f}, {st['lon_deg']:.4f})",
              "",
-             f"{'goal':<28} {'path':<5} {'bearings (clockwise)':>22} {'median':>7}"
+             f"{'goal':<{w}} {'path':<5} {'bearings (clockwise)':>22} {'median':>7}"
              f" {'nearest':>9} {'median':>9} {'farthest':>9} {'points':>6}",
-             f"{'':<28} {'':<5} {'deg':>22} {'deg':>7} {'km':>9} {'km':>9} {'km':>9}"]
+             f"{'':<{w}} {'':<5} {'deg':>22} {'deg':>7} {'km':>9} {'km':>9} {'km':>9}"]
     for g in result["goals"]:
         b, d = g["bearing_deg"], g["distance_km"]
         arc = f"{b['start']:5.1f} -> {b['end']:5.1f}"
-        lines.append(f"{g['name'][:28]:<28} {g['path']:<5} {arc:>22} {b['median']:7.1f}"
+        lines.append(f"{g['name']:<{w}} {g['path']:<5} {arc:>22} {b['median']:7.1f}"
                      f" {d['min']:9.0f} {d['median']:9.0f} {d['max']:9.0f} {g['points']:6d}")
     lines.append("")
     few = [g["name"] for g in result["goals"] if g["points"] < result.get("points_per_goal", 0)]
@@ -60,4 +77,5 @@ def format_text(result: dict) -> str:
                      "thin to sample finer.")
     lines.append("Bearings are true (clockwise from north); long path = bearing + 180 deg, "
                  "distance = 40030 km - short.")
+    lines += [f"Note: {n}" for n in result.get("notes", [])]
     return "\n".join(lines) + "\n"

@@ -12,6 +12,7 @@ from ..antenna.pattern import GAIN_FLOOR_DBI, array_pattern, lobe_bearings_deg, 
 from ..antenna.receive import directivity_dbi, rdf_db, sky_mean_gain_dbi
 from ..errors import UsageError
 from ..grid import AZIMUTH_DEG, ELEVATION_DEG, to_true_bearing
+from .widths import width as fit_width
 from ..plan.sweep import floored
 from ..render.scene import key_takeoff_deg
 from .ground import foreground_json, ground_line, ground_summary
@@ -191,6 +192,11 @@ def build(site, args=None) -> dict:
                 "front_to_rear_db": _r(fig["front_to_rear_db"]),
                 "beamwidth_deg": _r(fig["beamwidth_deg"], 1),
                 "element_currents": current_rows(res.base_current_a),
+                "kind": res.kind,
+                "design_band": res.design_band,
+                # every lobe within 1 dB at the peak elevation, true bearings, strongest first
+                "lobes_deg": [round(b, 1) for b, _ in
+                              lobe_bearings_deg(true_gain[int(round(fig["peak_elevation_deg"]))])],
                 "feedpoint_impedance_ohm": [pair(z) for z in res.feed_impedance_ohm],
                 "azimuth_deg": [float(a) for a in AZIMUTH_DEG],
                 "elevation_deg": [float(e) for e in ELEVATION_DEG],
@@ -279,33 +285,53 @@ def _cell(goal: dict, receive: bool) -> str:
 def _block_text(rows: list[dict]) -> list[str]:
     first = rows[0]
     receive = first["use"] == "receive"
-    width = max(12, *(min(len(p["state"]), 18) for p in rows))
-    lines = [f"{first['band']}, {first['option']}: baseline along {first['orientation_deg']:.1f}° "
-             f"({_WHERE[first['orientation_from']]})" + (", receive option" if receive else ""),
+    width = fit_width(12, (p["state"] for p in rows))
+    labels = [g["goal"] + (" (long)" if g["path"] == "long" else "") for g in first["goals"]]
+    wg = fit_width(22, labels)
+    ws = fit_width(18, (p["state"] for p in rows))
+    lobe_texts = [", ".join(f"{lobe['bearing_deg']:.0f}°" for lobe in p["lobes"]) or "none (omni)" for p in rows]
+    wl = fit_width(22, lobe_texts)
+    single = len(first["element_currents"]) == 1   # issue 10: one vertical has no baseline
+    lines = [f"{first['band']}, {first['option']}: " + ("one vertical, no baseline" if single else
+             f"baseline along {first['orientation_deg']:.1f}° ({_WHERE[first['orientation_from']]})")
+             + (", receive option" if receive else ""),
              "  toward each goal: " + ("directivity over the sky mean, dB, and vs 1 vertical's" if receive
                                        else "gain at its needed angles, dBi, and vs 1 vertical, dB")]
-    lines.append(f"  {'goal':<22} {'path':<5} {'bearings':>10} {'takeoff':>8}"
-                 + "".join(f"  {p['state'][:18]:>{width}}" for p in rows))
-    lines.append(f"  {'':<22} {'':<5} {'':>10} {'':>8}"
+    lines.append(f"  {'goal':<{wg}} {'path':<5} {'bearings':>10} {'takeoff':>8}"
+                 + "".join(f"  {p['state']:>{width}}" for p in rows))
+    lines.append(f"  {'':<{wg}} {'':<5} {'':>10} {'':>8}"
                  + "".join(f"  {('dB' if receive else 'dBi'):>5} {'vs 1':>5}".rjust(width + 2) for p in rows))
     for k, goal in enumerate(first["goals"]):
         label = goal["goal"] + (" (long)" if goal["path"] == "long" else "")
-        lines.append(f"  {label[:22]:<22} {goal['path']:<5} {_arc_text(goal):>10} {_takeoff_text(goal):>8}"
+        lines.append(f"  {label:<{wg}} {goal['path']:<5} {_arc_text(goal):>10} {_takeoff_text(goal):>8}"
                      + "".join(f"  {_cell(p['goals'][k], receive):>{width}}" for p in rows))
     if not first["goals"]:
         lines.append("  (no goal on this band)")
     lines.append("")
-    lines.append(f"  {'state':<18} {'lobes (true bearing)':<22} {'F/B':>6} {'beam w.':>7} {'peak':>6} "
+    lines.append(f"  {'state':<{ws}} {'lobes (true bearing)':<{wl}} {'F/B':>6} {'beam w.':>7} {'peak':>6} "
                  f"{'at':>10} {'RDF':>5}  currents (rel. element 1)")
-    lines.append(f"  {'':<18} {'':<22} {'dB':>6} {'deg':>7} {'dBi':>6} {'az/el deg':>10} {'dB':>5}")
-    for p in rows:
-        lobes = ", ".join(f"{lobe['bearing_deg']:.0f}°" for lobe in p["lobes"]) or "none (omni)"
+    lines.append(f"  {'':<{ws}} {'':<{wl}} {'dB':>6} {'deg':>7} {'dBi':>6} {'az/el deg':>10} {'dB':>5}")
+    for p, lobes in zip(rows, lobe_texts):
         cur = ", ".join(f"{c['amplitude']:.2f}/{c['phase_deg']:+.0f}" for c in p["element_currents"])
         at = f"{p['peak_azimuth_deg']:.0f}/{p['peak_elevation_deg']:.0f}"
-        lines.append(f"  {p['state'][:18]:<18} {lobes[:22]:<22} {_fmt(p['front_to_back_db'])} "
+        lines.append(f"  {p['state']:<{ws}} {lobes:<{wl}} {_fmt(p['front_to_back_db'])} "
                      f"{_fmt(p['beamwidth_deg'], '7.0f')} {p['peak_gain_dbi']:6.2f} {at:>10} "
                      f"{p['rdf_db']:5.1f}  {cur}")
+    lines += _kind_lines(rows)
     return lines
+
+
+def _kind_lines(rows: list[dict]) -> list[str]:
+    """Issue 10: which states' currents are as built, forced or fed on this band."""
+    built = [p for p in rows if p.get("kind") == "as-built"]
+    forced = [p["state"] for p in rows if p.get("kind") == "forced" and len(p["element_currents"]) > 1]
+    out = []
+    for band in dict.fromkeys(p["design_band"] for p in built):
+        out.append(f"  as built from the {band} network (the currents it delivers here): "
+                   + ", ".join(p["state"] for p in built if p["design_band"] == band))
+    if forced:
+        out.append("  forced (the wanted currents held exactly): " + ", ".join(forced))
+    return out
 
 
 def format_text(result: dict) -> str:
