@@ -38,7 +38,8 @@ __all__ = ["SIMPLIFY_DEG", "script_json", "svg_path", "page_drawing", "page_html
 SIMPLIFY_DEG = 0.1
 """Outline tolerance in degrees (about 11 km): under a pixel on any screen map."""
 
-_MIN_PART_KM2 = 400.0   # land parts smaller than a 20 km square vanish at page scale
+_MIN_PART_KM2 = 400.0        # land parts smaller than a 20 km square vanish at page scale
+_MIN_GOAL_PART_KM2 = 50.0    # a goal's islets too; a goal made only of islets keeps them
 
 
 def script_json(obj, text: str | None = None) -> str:
@@ -69,8 +70,8 @@ def _ring_d(xy_km: np.ndarray, closed: bool) -> str:
 def svg_path(geom) -> str:
     """A projected shapely geometry (metres, y north) as an SVG path in km, y down.
 
-    Every part is kept: small land parts are dropped before projecting
-    (:func:`_projected_d`), never a goal's."""
+    Every part is kept: small parts are dropped before projecting
+    (:func:`_simplified`)."""
     out = []
 
     def xy(coords):
@@ -101,24 +102,36 @@ def _big_parts(geom, min_km2: float):
     return MultiPolygon(keep) if keep else None
 
 
-def _projected_d(proj, src, geom, lines: bool = False, min_km2: float = 0.0) -> str:
-    """Simplify in lon/lat, project as the maps do, and write the SVG path."""
+def _simplified(geom, min_km2: float, keep_one: bool = False):
+    """Parts of at least ``min_km2``, simplified by ``SIMPLIFY_DEG`` (lon/lat), or None.
+
+    ``keep_one``: a region made only of small parts (a goal island) keeps them all.
+    """
+    if geom is None or geom.is_empty:
+        return None
+    big = _big_parts(geom, min_km2) if min_km2 > 0.0 else geom
+    if big is None and keep_one:
+        big = geom
+    return None if big is None else big.simplify(SIMPLIFY_DEG, preserve_topology=True)
+
+
+def _fill_d(proj, src, small) -> str:
+    """A simplified lon/lat geometry projected as the maps project it, as an SVG path."""
+    from .azimap import project_parts
+
+    if small is None or small.is_empty:
+        return ""
+    return "".join(svg_path(g) for g in project_parts(proj, src, small))
+
+
+def _edge_d(proj, src, small) -> str:
+    """Its coastlines and borders, without the cuts along +-180 deg and the South Pole."""
     from shapely.geometry import MultiLineString
 
     from .azimap import outline_lines
 
-    if geom is not None and min_km2 > 0.0 and not geom.is_empty:
-        geom = _big_parts(geom, min_km2)
-    if geom is None or geom.is_empty:
-        return ""
-    small = geom.simplify(SIMPLIFY_DEG, preserve_topology=True)
-    if lines:
-        segs = outline_lines(small)
-        if not segs:
-            return ""
-        small = MultiLineString(segs)
-    projected = proj.project_geometry(small, src)
-    return "" if projected.is_empty else svg_path(projected)
+    segs = outline_lines(small) if small is not None and not small.is_empty else []
+    return _fill_d(proj, src, MultiLineString(segs)) if segs else ""
 
 
 def _label_km(proj, src, geom) -> list[int] | None:
@@ -133,12 +146,15 @@ def _label_km(proj, src, geom) -> list[int] | None:
     return [int(round(x / 1000.0)), int(round(-y / 1000.0))]
 
 
-def _size_km(proj, src, geom) -> int:
+def _size_km(proj, src, small) -> int:
     """The larger side of the goal's projected bounding box, km (small goals get a marker)."""
-    projected = proj.project_geometry(geom, src)
-    if projected.is_empty:
+    from .azimap import project_parts
+
+    pieces = [] if small is None or small.is_empty else project_parts(proj, src, small)
+    if not pieces:
         return 0
-    x0, y0, x1, y1 = projected.bounds
+    x0, y0 = min(g.bounds[0] for g in pieces), min(g.bounds[1] for g in pieces)
+    x1, y1 = max(g.bounds[2] for g in pieces), max(g.bounds[3] for g in pieces)
     return int(round(max(x1 - x0, y1 - y0) / 1000.0))
 
 
@@ -162,17 +178,20 @@ def _option_lobes(site, plan, op, theta_deg: float) -> dict:
 
 @functools.lru_cache(maxsize=4)
 def _land(lon_deg: float, lat_deg: float) -> tuple[tuple[str, ...], tuple[str, ...]]:
-    """Land fills and outlines (SVG paths) for one station, kept for later pages."""
-    from ..geo.regions import countries
+    """Land fills and outlines (SVG paths) for one station, kept for later pages.
+
+    From the maps' light background outlines; goals come at full detail."""
+    from ..geo.regions import basemap_geometries
     from .azimap import projection
 
     proj, src = projection(lon_deg, lat_deg)
     land, borders = [], []
-    for geom in countries().geometry:
-        d = _projected_d(proj, src, geom, min_km2=_MIN_PART_KM2)
+    for geom in basemap_geometries():
+        small = _simplified(geom, _MIN_PART_KM2)
+        d = _fill_d(proj, src, small)
         if d:
             land.append(d)
-            borders.append(_projected_d(proj, src, geom, lines=True, min_km2=_MIN_PART_KM2))
+            borders.append(_edge_d(proj, src, small))
     return tuple(land), tuple(b for b in borders if b)
 
 
@@ -207,15 +226,16 @@ def page_drawing(site, plan) -> dict:
         if goal.name in goals:   # the long path of a goal: the same region
             continue
         geom = goal_area(site, goal).geometry
-        goals[goal.name] = {"name": goal.name, "fill": _projected_d(proj, src, geom),
-                            "edge": _projected_d(proj, src, geom, lines=True), "label_km": _label_km(proj, src, geom),
-                            "size_km": _size_km(proj, src, geom)}
+        small = _simplified(geom, _MIN_GOAL_PART_KM2, keep_one=True)
+        goals[goal.name] = {"name": goal.name, "fill": _fill_d(proj, src, small), "edge": _edge_d(proj, src, small),
+                            "label_km": _label_km(proj, src, geom), "size_km": _size_km(proj, src, small)}
     avoid = {}
     for goal in site.goals:
         for text in goal.avoid:
             if text not in avoid:
                 geom = region_area(site, text).geometry
-                avoid[text] = {"region": text, "for": [], "fill": _projected_d(proj, src, geom)}
+                avoid[text] = {"region": text, "for": [],
+                               "fill": _fill_d(proj, src, _simplified(geom, _MIN_GOAL_PART_KM2, keep_one=True))}
             if goal.name not in avoid[text]["for"]:
                 avoid[text]["for"].append(goal.name)
     options = []
