@@ -481,6 +481,13 @@ def test_the_plans_own_schedule_reads_as_plan_json(browser, pages):
     n_bands = len({r["band"] for r in plan["schedule"]})
     cells = browser.find_elements("css selector", "#schedule-svg rect[data-hour]")
     assert len(cells) == n_bands * len(plan["months"]) * 24
+    # the staking plan written by plan: each element's north and east as plan.json gives them
+    stakes = next(sp for sp in plan["stakes"] if sp["option"] == option)
+    heads = [h.text for h in browser.find_elements("css selector", "#stakes-table th")]
+    for tr, want in zip(browser.find_elements("css selector", "#stakes-table tbody tr"), stakes["elements"], strict=True):
+        cells = [td.text for td in tr.find_elements("css selector", "td")]
+        assert float(cells[heads.index("north (m)")]) == want["north_m"]
+        assert float(cells[heads.index("east (m)")]) == want["east_m"]
 
 
 def test_a_cardioid_lobe_points_along_the_baseline(browser, pages):
