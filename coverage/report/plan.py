@@ -291,9 +291,9 @@ def _kinds_text(states: list[dict]) -> list[str]:
         if fed:
             parts.append("its own lines (line_m) on " + ", ".join(fed))
         out.append(f"  {s['state']!r} ({s['option'][:24]}): " + "; ".join(parts))
-    out.append("  as built: the currents the state's switch network, designed on that band, really delivers "
-               "(coupling, line loss, fixed parts); forced: the wanted currents held exactly (an ideal feed, "
-               "or forced_bands: a network of its own on that band).")
+    out.append("  as built: the currents the state's switch network, designed on the state's design band, "
+               "really delivers on each band (coupling, line loss, fixed parts); forced: the wanted currents "
+               "held exactly (an ideal feed, or forced_bands: a network of its own on that band).")
     return out
 
 
