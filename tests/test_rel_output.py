@@ -105,10 +105,10 @@ def test_rerun_removes_its_own_stale_results_and_names_other_verbs(write_site, t
     assert (out / "paths.json").exists()
     manifest = json.loads((out / fileio.MANIFEST).read_text())["files"]
     # plan also writes the hour-by-hour schedule: its CSV, the switch card and a figure per band,
-    # and the staking plan (issue 10)
+    # the staking plan (issue 10) and the page
     assert manifest == {"paths.json": "paths", "plan.json": "plan", "plan.csv": "plan", "map-40m.png": "plan",
                         "schedule.csv": "plan", "switch-card.pdf": "plan", "switch-card.png": "plan",
-                        "schedule-40m.png": "plan", "stakes.csv": "plan", "layout.png": "plan"}
+                        "schedule-40m.png": "plan", "stakes.csv": "plan", "layout.png": "plan", "plan.html": "plan"}
     # a user's own file in the folder is neither removed nor named
     (out / "notes.txt").write_text("mine")
     assert main(["plan", str(write_site(MINIMAL)), "--out", str(out)]) == 0
