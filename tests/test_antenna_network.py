@@ -234,3 +234,17 @@ def test_any_square_state_and_its_image_share_one_design(phases, k):
     assert a.form == b.form
     for i in range(4):
         assert b.branches[perm[i]].line_m == pytest.approx(a.branches[i].line_m, abs=1e-9)
+
+
+def test_cut_tolerance_watches_the_rear_null_of_a_split_beam():
+    # Array-factor theory (Balanis sec. 6.2; the endfire null condition
+    # kd + alpha = pi): a 3/8-wavelength pair fed 0/-45 deg nulls along the
+    # baseline behind it while its beam splits off the baseline, so the
+    # opposite of the peak is no null at all. Mis-cut lines fill that rear
+    # null: the tolerance must exist (it read "nothing to lose" before).
+    spacing = 0.375 * 299_792_458.0 / F0
+    state = State("null", phase_deg=(0.0, -45.0), amplitude=(1.0, 1.0), design_band="40 m", design_freq_hz=F0)
+    option = ArrayOption("pair", "pair", spacing, layout_positions_m("pair", spacing), (state,))
+    spec = ArraySpec(10.3, 0.02, GROUND_CLASSES["average"], 2.0, CABLE, (option,))
+    tol_cm, tol_vf, _ = cut_tolerance(spec, option, state)
+    assert tol_cm is not None and 1.0 < tol_cm < 250.0 and tol_vf is not None

@@ -19,11 +19,14 @@ def test_p1240_basic_muf_worked_example():
     # ITU-R P.1240 F2 basic MUF (constants from memory), worked by hand:
     # foF2 8, foE 3, M(3000)F2 3.0, fH 1.2 MHz, d 2000 km:
     #   x = 2.667, B = 3.0 - 0.124 + 5 (0.0215 + 0.005 sin(7.854/x - 1.9635)) = 3.0043
-    #   d_max = 4780 + (12610 + 301 - 6992 + 1960)(1/B - 0.303) = 5193 -> capped 4000 km
+    #   d_max = 4780 + (12610 + 301 - 983 + 1916)(1/B - 0.303) = 5193 -> capped 4000 km
     #   Z(2000) = 0 -> C = 0.74; Z(3000) = -0.5 -> C = 0.94209
     #   MUF = (1 + 0.74/0.94209 x 2.0043) x 8 + 0.6 x (1 - 0.5) = 20.895 MHz
     # the hand figures carry 5 digits, hence 1e-3 MHz
     assert p1240_dmax_km(8.0, 3.0, 3.0) == pytest.approx(4000.0)
+    # below the cap (M(3000)F2 4.0, same x): B = 4 - 0.124 + 12 (0.0215 + 0.005 sin(0.9817)) = 4.1839,
+    # d_max = 4780 + 13843.5 (1/4.1839 - 0.303) = 3894.2 km (by hand, hence 0.5 km)
+    assert p1240_dmax_km(8.0, 3.0, 4.0) == pytest.approx(3894.2, abs=0.5)
     assert p1240_f2_muf(8.0, 3.0, 3.0, 2000.0, 1.2) == pytest.approx(20.895, abs=1e-3)
 
 

@@ -105,10 +105,10 @@ def test_rerun_removes_its_own_stale_results_and_names_other_verbs(write_site, t
     assert (out / "paths.json").exists()
     manifest = json.loads((out / fileio.MANIFEST).read_text())["files"]
     # plan also writes the hour-by-hour schedule: its CSV, the switch card and a figure per band,
-    # and the staking plan (issue 10)
+    # the staking plan (issue 10) and the page
     assert manifest == {"paths.json": "paths", "plan.json": "plan", "plan.csv": "plan", "map-40m.png": "plan",
                         "schedule.csv": "plan", "switch-card.pdf": "plan", "switch-card.png": "plan",
-                        "schedule-40m.png": "plan", "stakes.csv": "plan", "layout.png": "plan"}
+                        "schedule-40m.png": "plan", "stakes.csv": "plan", "layout.png": "plan", "plan.html": "plan"}
     # a user's own file in the folder is neither removed nor named
     (out / "notes.txt").write_text("mine")
     assert main(["plan", str(write_site(MINIMAL)), "--out", str(out)]) == 0
@@ -163,18 +163,36 @@ def test_interrupt_after_the_move_says_the_results_are_there(write_site, tmp_pat
 @pytest.mark.parametrize("sig, code, says", [(signal.SIGTERM, 143, "terminated (SIGTERM)"),
                                              (signal.SIGINT, 130, "interrupted")])
 def test_a_signal_while_writing_leaves_nothing(write_site, tmp_path, sig, code, says):
-    # a real process, stopped while its staging folder exists (maps being drawn)
+    # A real process, stopped while it writes into its staging folder. It
+    # holds still after drawing its maps (and says so in a marker file), so
+    # the signal lands there and not, on a loaded machine, in the final moves:
+    # a signal in the moves is held until they are done, and the run then
+    # rightly reports its files as written.
     site = write_site(MINIMAL)
     out = tmp_path / "res"
-    proc = subprocess.Popen([sys.executable, "-m", "lobeplan", "plan", str(site), "--out", str(out)],
+    mark = tmp_path / "maps-drawn"
+    child = (
+        "import pathlib, sys, time\n"
+        "import lobeplan.report.map as m\n"
+        "orig = m.write_plan_figures\n"
+        "def held(*a, **k):\n"
+        "    done = orig(*a, **k)\n"
+        f"    pathlib.Path({str(mark)!r}).write_text('x')\n"
+        "    time.sleep(120)\n"
+        "    return done\n"
+        "m.write_plan_figures = held\n"
+        "from lobeplan.cli import main\n"
+        f"sys.exit(main(['plan', {str(site)!r}, '--out', {str(out)!r}]))\n"
+    )
+    proc = subprocess.Popen([sys.executable, "-c", child],
                             stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, cwd=tmp_path,
                             env={**os.environ, "MPLBACKEND": "Agg"},
                             # a shell's background job starts with SIGINT ignored; a user's terminal does not
                             preexec_fn=lambda: signal.signal(signal.SIGINT, signal.SIG_DFL))
-    deadline = time.monotonic() + 60
-    while not _leftovers(tmp_path) and proc.poll() is None and time.monotonic() < deadline:
+    deadline = time.monotonic() + 120
+    while not mark.exists() and proc.poll() is None and time.monotonic() < deadline:
         time.sleep(0.02)
-    assert proc.poll() is None, "the run ended before it could be stopped"
+    assert proc.poll() is None and _leftovers(tmp_path), "the run ended before it could be stopped"
     proc.send_signal(sig)
     _, err = proc.communicate(timeout=60)
     assert proc.returncode == code

@@ -75,10 +75,27 @@ def _front(spec, option, state):
     return int(el), float(az)
 
 
-def _fb(spec, option, net, freq_hz, el, az, feed=None):
+def _rear_null_deg(spec, option, state, el: int, az: float) -> float:
+    """Frame azimuth of the wanted pattern's weakest direction in the rear half
+    (within 90 deg of the back), at the beam's takeoff angle.
+
+    A cardioid's is the back itself; a pair whose beam splits in two (3/8
+    wavelength, 0/-45 deg) has its null along the baseline instead, and that
+    null is what mis-cut lines destroy.
+    """
+    f = state.design_freq_hz
+    sol = coupled_elements(spec, option, f)
+    d = drive_forced(base_impedance_ohm(spec, option, f, sol), state_currents(state, option.n_elements))
+    rear = (az + 180.0 + np.arange(-90.0, 91.0)) % 360.0
+    g = gain_toward_dbi(sol, spec.ground, d.base_current_a, 1.0, el, rear)
+    return float(rear[int(np.argmin(g))])
+
+
+def _fb(spec, option, net, freq_hz, el, az, feed=None, rear_az=None):
     sol = coupled_elements(spec, option, freq_hz)
     drive = network_drive(base_impedance_ohm(spec, option, freq_hz, sol), feed or spec.feed, net, freq_hz)
-    g = gain_toward_dbi(sol, spec.ground, drive.base_current_a, 1.0, el, [az, az + 180.0])
+    back = az + 180.0 if rear_az is None else rear_az
+    g = gain_toward_dbi(sol, spec.ground, drive.base_current_a, 1.0, el, [az, back])
     return drive, float(g[0]), float(min(g[0] - g[1], RATIO_CAP_DB))
 
 
@@ -103,22 +120,25 @@ def _smallest(cost, limit: float) -> float | None:
 @functools.lru_cache(maxsize=128)
 def cut_tolerance(spec: ArraySpec, option: ArrayOption, state: State):
     """(cm of the most sensitive line, % of velocity factor, cm of each line) that cost
-    3 dB of front-to-back (cached).
+    3 dB of the rear null (cached).
 
-    None where the state has under 6 dB of front-to-back or no error in the
-    searched range (2.5 m, 25 %) costs 3 dB.
+    The ratio watched is the beam's gain over the wanted pattern's weakest
+    direction in the rear half (see :func:`_rear_null_deg`), at the beam's
+    takeoff angle: the back itself for a cardioid. None where that ratio is
+    under 6 dB or no error in the searched range (2.5 m, 25 %) costs 3 dB.
     """
     net = state_network(spec, option, state)
     f0 = state.design_freq_hz
     el, az = _front(spec, option, state)
-    _, _, fb0 = _fb(spec, option, net, f0, el, az)
+    rear = _rear_null_deg(spec, option, state, el, az)
+    _, _, fb0 = _fb(spec, option, net, f0, el, az, rear_az=rear)
     if fb0 < _MIN_FB_DB:
         return None, None, tuple(None for _ in net.branches)
 
     def line_cost(dx, e, sign):
         br = list(net.branches)
         br[e] = replace(br[e], line_m=max(br[e].line_m + sign * dx, 0.0))
-        return fb0 - _fb(spec, option, replace(net, branches=tuple(br)), f0, el, az)[2]
+        return fb0 - _fb(spec, option, replace(net, branches=tuple(br)), f0, el, az, rear_az=rear)[2]
 
     per_line = []
     for e in range(len(net.branches)):
@@ -130,7 +150,7 @@ def cut_tolerance(spec: ArraySpec, option: ArrayOption, state: State):
 
     def vf_cost(eps, sign):
         feed = replace(spec.feed, velocity_factor=spec.feed.velocity_factor * (1.0 + sign * eps))
-        return fb0 - _fb(spec, option, net, f0, el, az, feed)[2]
+        return fb0 - _fb(spec, option, net, f0, el, az, feed, rear_az=rear)[2]
 
     found = [_smallest(lambda e, sg=sg: vf_cost(e, sg), _MAX_VF_ERROR) for sg in (1.0, -1.0)]
     found = [x for x in found if x is not None]

@@ -14,6 +14,8 @@ from pathlib import Path
 
 import numpy as np
 
+from ..safety import CAUTION_LINE
+
 from .azimap import INK, STATE_COLOURS
 from .panels import ALLOWED, _allowed_spans
 
@@ -76,16 +78,21 @@ def layout_figure(stakes, allowed_deg, beams, title: str):
         for s in sp.elements:
             ax.annotate(s.name, (s.east_m, s.north_m), xytext=(6, 6), textcoords="offset points", fontsize=10,
                         fontweight="bold", color=INK, zorder=5)
-        if len(pts) > 1:
+        if len(pts) > 1:   # one vertical is fed at its base: no junction
             ax.plot([jx], [jy], "s", color="#8a6d3b", markersize=7, zorder=4, gid="junction", label="junction")
+        drawn: list[float] = []
         for k, (state, bearings) in enumerate(bm.items()):
             col = STATE_COLOURS[k % len(STATE_COLOURS)]
             for j, b in enumerate(bearings):
                 t = math.radians(b)
+                # a beam another state already shows on this bearing gets a shorter
+                # arrow, so both stay visible
+                tip = 2.0 - 0.22 * sum(abs((b - d + 180.0) % 360.0 - 180.0) < 3.0 for d in drawn)
+                drawn.append(b)
                 # outside the elements, so the line runs stay visible
-                ax.annotate("", xy=(centre[0] + 2.0 * size * math.sin(t), centre[1] + 2.0 * size * math.cos(t)),
+                ax.annotate("", xy=(centre[0] + tip * size * math.sin(t), centre[1] + tip * size * math.cos(t)),
                             xytext=(centre[0] + 1.25 * size * math.sin(t), centre[1] + 1.25 * size * math.cos(t)),
-                            arrowprops=dict(arrowstyle="-|>", color=col, linewidth=1.6), zorder=3)
+                            arrowprops=dict(arrowstyle="-|>", color=col, linewidth=1.6), zorder=3 + 0.01 * k)
             ax.plot([], [], color=col, linewidth=1.6, label=f"{state}: beam " +
                     ("all round" if not bearings else "/".join(f"{b:.0f}°" for b in bearings)))
         # scale bar, bottom left
@@ -105,15 +112,16 @@ def layout_figure(stakes, allowed_deg, beams, title: str):
         ax.tick_params(labelsize=7)
         ax.grid(True, color="#e2e2e2", linewidth=0.5)
         ax.set_title(sp.option, fontsize=10, loc="left", color=INK)
-        ax.legend(fontsize=6.8, loc="upper center", bbox_to_anchor=(0.5, -0.1), ncol=2, frameon=False)
+        ax.legend(fontsize=6.8, loc="upper center", bbox_to_anchor=(0.5, -0.09), ncol=2, frameon=False)
     # about 12 characters of 10.5 pt bold per inch: wrap the title to the page it sits on
     lines = textwrap.wrap(title, max(30, int(12 * 5.4 * n)))
     fig.suptitle("\n".join(lines), fontsize=10.5, color=INK, fontweight="bold")
-    # room below the axes for the longest legend (two columns, about 0.17 in a row)
-    rows = max(math.ceil(len(ax.get_legend_handles_labels()[0]) / 2) for ax in axes[0])
-    height_in = 6.9 + 0.17 * rows
-    fig.set_size_inches(5.4 * n, height_in)
-    fig.tight_layout(rect=(0, (0.3 + 0.17 * rows) / height_in, 1, 1 - 0.28 * len(lines) / height_in))
+    rows = max((len(b) + 4 + 1) // 2 for b in beams) if beams else 3  # legend rows below each plan
+    bottom = min(0.4, (0.45 + 0.17 * rows + 0.5) / fig.get_figheight())
+    fig.tight_layout(rect=(0, bottom, 1, 1 - 0.28 * len(lines) / fig.get_figheight()))
+    fig.text(0.01, 0.012, "Before digging or driving stakes, have buried services located; keep elements, radials "
+             "and guys clear of power lines (nothing may reach one if it falls). " + CAUTION_LINE,
+             fontsize=6.6, color="#6b3a1e", wrap=True)
     return fig
 
 

@@ -15,6 +15,8 @@ from pathlib import Path
 
 import numpy as np
 
+from ..safety import CAUTION_LINE
+
 from ..propagation.model import hour_ranges_text
 from .azimap import INK, STATE_COLOURS
 from .panels import NEED_COLOURS, _pyplot, _save
@@ -203,6 +205,7 @@ def switch_card_figure(site, plan, schedule, date_text: str):
              "takeoff angles then, against one vertical.", fontsize=8, color=INK, va="top", linespacing=1.3)
     fig.text(left, 0.45 / h, f"lobeplan {date_text}. Stay clear of the elements when transmitting; "
              "disconnect and ground the feed lines before a storm.", fontsize=8, color=INK)
+    fig.text(left, 0.28 / h, CAUTION_LINE, fontsize=7.2, color="#5b2a1a")
     return fig
 
 

@@ -403,15 +403,15 @@ def _network_text(n) -> list[str]:
     vf = n.get("tolerance_vf_pct")
     if "tolerance_cm" in n:
         by_line = ", ".join("over 250" if x is None else f"{x:.1f}" for x in n.get("tolerance_cm_by_line", []))
-        out.append("      cut tolerance: " + ("no front-to-back to lose" if tol is None and vf is None else
+        out.append("      cut tolerance: " + ("no rear null to lose (under 6 dB)" if tol is None and vf is None else
                    f"{'over 250' if tol is None else f'{tol:.1f}'} cm on the most sensitive line (each line: "
                    f"{by_line} cm), or {'over 25' if vf is None else f'{vf:.2f}'} % of velocity factor, costs "
-                   "3 dB of front-to-back"))
+                   "3 dB of the rear null (the beam over the weakest rear direction, see docs/feed.md)"))
     for c in n.get("checks", []):
         cur = ", ".join(f"{e['amplitude']:.2f}/{e['phase_deg']:+.0f}" for e in c["element_currents"])
         sw = "-" if c["swr"] is None else f"{c['swr']:.2f}"
         out.append(f"      at {c['freq_mhz']:g} MHz: currents {cur}; forward {c['forward_gain_dbi']:+.2f} dBi, "
-                   f"F/B {c['front_to_back_db']:.1f} dB, SWR {sw}")
+                   f"F/B {c['front_to_back_db'] + 0.0:.1f} dB, SWR {sw}")
     return out
 
 
@@ -425,8 +425,10 @@ FOOTNOTES = (
     "forward: gain toward the forced pattern's peak (design band), per watt into the junction; F/B: against the "
     "opposite bearing at the same elevation; SWR: 50 ohm, through the junction's match (parts fixed at their "
     "design-band values). Cut tolerance: the smallest error of one line's length, or of the cable's velocity "
-    "factor, that costs 3 dB of front-to-back on the design band.",
-    "part stress: peak voltage across and RMS current through each part at the given power (--power-w). "
+    "factor, that costs 3 dB of the rear null on the design band: the beam's gain over the wanted pattern's "
+    "weakest direction within 90 deg of the back, at the beam's takeoff angle (the back itself for a cardioid).",
+    "part stress: peak voltage across and RMS current through each part at the given power (--power-w); "
+    "these voltages are dangerous: work on the switch box only with the transmitter off and disconnected. "
     "Lobes: every beam within 1 dB of the peak, azimuth from the baseline (array frame).",
 )
 

@@ -68,7 +68,7 @@ def _spacing(option):
 
 
 def _r(x, nd=2):
-    return None if x is None else round(float(x), nd)
+    return None if x is None else round(float(x), nd) + 0.0  # + 0.0: no "-0.0" in text or JSON
 
 
 def _goal_context(site, quiet: bool):

@@ -73,6 +73,7 @@ def _state_kinds(plan) -> list[dict]:
 
 def build_from_plan(site, plan) -> dict:
     from ..plan.planner import goal_rows, windows_within
+    from .paths import goal_path_rows
     from .schedule import schedule_of, schedule_options, schedule_rows
 
     def bearing(layout, theta):   # one vertical has no baseline
@@ -124,6 +125,7 @@ def build_from_plan(site, plan) -> dict:
         + list(element_caveats(site)),
         "ground_system": ground_summary(site),
         "cautions": list(CAUTIONS),
+        "goal_paths": goal_path_rows(site),   # bearings and distances the plan page shows
     }
 
 
@@ -289,9 +291,9 @@ def _kinds_text(states: list[dict]) -> list[str]:
         if fed:
             parts.append("its own lines (line_m) on " + ", ".join(fed))
         out.append(f"  {s['state']!r} ({s['option'][:24]}): " + "; ".join(parts))
-    out.append("  as built: the currents the state's switch network, designed on that band, really delivers "
-               "(coupling, line loss, fixed parts); forced: the wanted currents held exactly (an ideal feed, "
-               "or forced_bands: a network of its own on that band).")
+    out.append("  as built: the currents the state's switch network, designed on the state's design band, "
+               "really delivers on each band (coupling, line loss, fixed parts); forced: the wanted currents "
+               "held exactly (an ideal feed, or forced_bands: a network of its own on that band).")
     return out
 
 
@@ -391,8 +393,9 @@ def _csv(result: dict) -> str:
 
 
 def write_files(site, args, result, out_dir) -> list[Path]:
-    """plan.json and plan.csv, then the maps (PNG per band), panels and GeoJSON."""
+    """plan.json and plan.csv, then the maps (PNG per band), panels, GeoJSON and plan.html."""
     from ..fileio import atomic_write_json, atomic_write_text
+    from ..render.page import write_page
     from .map import write_plan_figures
 
     out = Path(out_dir)
@@ -402,4 +405,5 @@ def write_files(site, args, result, out_dir) -> list[Path]:
     from .schedule import schedule_of, write_schedule_files
 
     written += write_schedule_files(site, plan, schedule_of(site, plan), result, args, out)
-    return written + write_plan_figures(site, plan, args, out) + [write_layout(site, plan, result, out)]
+    return written + write_plan_figures(site, plan, args, out) + [write_layout(site, plan, result, out),
+                                                                  write_page(site, plan, result, out / "plan.html")]

@@ -10,6 +10,8 @@ import io
 import math
 from pathlib import Path
 
+from ..safety import CAUTIONS
+
 __all__ = ["add_arguments", "check_arguments", "build", "build_from_plan", "schedule_rows", "schedule_options",
            "schedule_of", "run_schedule", "format_text", "write_files", "write_schedule_files", "goal_label",
            "SCHEDULE_NOTES"]
@@ -81,6 +83,7 @@ def build_from_plan(site, plan, schedule) -> dict:
         "schedule": schedule_rows(schedule),
         "notes": list(SCHEDULE_NOTES),
         "caveats": list(plan.caveats),
+        "cautions": list(CAUTIONS),
     }
 
 
@@ -156,6 +159,7 @@ def format_text(result: dict) -> str:
     if result["caveats"]:
         out += ["", "Propagation model notes"]
         out += [f"  - {c}" for c in result["caveats"]]
+    out += ["", "Cautions"] + [f"  - {c}" for c in result.get("cautions", [])]
     return "\n".join(out) + "\n"
 
 
