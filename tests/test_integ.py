@@ -206,7 +206,7 @@ def test_readme_usage_names_every_verb_and_what_plan_out_writes():
     for verb in VERBS:
         assert f"    lobeplan {verb} " in usage, verb
     for name in ("plan.json", "plan.csv", "plan.geojson", "stakes.csv", "layout.png", "schedule.csv",
-                 "switch-card.png", "paths.json", "needs.json", "./lobeplan-demo", "./lobeplan-maps"):
+                 "switch-card.png", "plan.html", "paths.json", "needs.json", "./lobeplan-demo", "./lobeplan-maps"):
         assert name in usage, name
 
 
