@@ -379,3 +379,9 @@ def test_a_signal_just_after_the_staging_folder_is_made_leaves_nothing(write_sit
     capsys.readouterr()
     assert not out.exists()
     assert [p.name for p in tmp_path.iterdir() if p.name.startswith(".")] == []
+
+
+def test_suggest_on_one_vertical_says_why_there_is_nothing(write_site, capsys):
+    path = write_site(SINGLE)
+    assert main(["feed", str(path), "--suggest", "goals"]) == 0
+    assert "no phasing to choose" in capsys.readouterr().out

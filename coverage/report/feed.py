@@ -278,6 +278,8 @@ def _suggest_text(result: dict, site_options: int) -> str:
     out = [f"# Suggested switch states (target: {result['target']}); paste into the site file.",
            f"# forward gain and F/B along the baseline at {result['elevation_deg']:g} deg elevation, 1 W into "
            "the bases; the currents are forced (their network is designed on the band named).", ""]
+    if not result["suggestions"]:
+        out.append("# nothing to suggest: every option is one vertical, which has no phasing to choose")
     for s in result["suggestions"]:
         if s["amplitude"] is None:
             out.append(f"# {s['option']}, {s['band']}: {s['note']}")
