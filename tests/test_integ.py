@@ -299,25 +299,9 @@ def test_a_foreground_edge_is_not_a_lobe():
     assert len(lobe_bearings_deg(flat)) == 1
 
 
-RECEIVE = HEAD + """
-[array]
-height_m = 3.0
-radius_m = 0.01
-layout = "pair"
-spacing_m = 15
-use = "receive"
-[[array.state]]
-name = "fwd"
-phase_deg = [0, -130]
-[[band]]
-name = "40 m"
-freq_mhz = 7.1
-[[goal]]
-region = "continent:Europe"
-[propagation]
-model = "geometry"
-points_per_goal = 30
-"""
+# the built pair, as a short receive pair (3 m elements, 15 m apart)
+RECEIVE = (PAIR_BUILT.replace("height_m = 10.3\n", 'height_m = 3.0\nradius_m = 0.01\nuse = "receive"\n', 1)
+           .replace("spacing_m = 10.5", "spacing_m = 15").replace("phase_deg = [0, -90]", "phase_deg = [0, -130]"))
 
 
 def test_feed_designs_no_transmitter_match_for_a_receive_option():
