@@ -137,7 +137,10 @@ def _foreground_strip(ax, foreground, y_top: float) -> None:
 
 
 def _note(receive: bool, n_foreground: int) -> str:
-    """The definitions under the charts, wrapped to the 13 in page (200 characters of 6.8 pt fit a line with room to spare)."""
+    """The definitions under the charts, wrapped to the 13 in page.
+
+    200 characters of 6.8 pt fit a line with room to spare.
+    """
     import textwrap
 
     what = ("advantage in directivity (over the sky mean) over one vertical" if receive
