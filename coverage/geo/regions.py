@@ -722,8 +722,7 @@ def resolve(region: Region | str, station: Station, base_dir: str | os.PathLike[
         geom = continent_geometry(reg.name)
     elif reg.kind == "circle":
         lat, lon, radius = reg.numbers
-        # -180 and 180 are one meridian; the outline is split cleanly from the +180 side
-        disc = Disc(180.0 if lon == -180.0 else lon, lat, 0.0, 360.0, 0.0, radius)
+        disc = Disc(lon, lat, 0.0, 360.0, 0.0, radius)
     elif reg.kind == "sector":
         a, b, dmin, dmax = reg.numbers
         span = (b - a) % 360.0 or 360.0
