@@ -50,7 +50,8 @@ VERBS = {
                 "each, lobes, front-to-back, beam width, RDF; figures and gain grids with --out"),
     "feed": ("lobeplan.report.feed", "coupled impedances, true element currents, feed-point impedances, "
              "line design and match"),
-    "map": ("lobeplan.report.map", "azimuthal-equidistant map per band with the lobes and goals"),
+    "map": ("lobeplan.report.map", "azimuthal-equidistant map per band with the lobes and goals; writes to "
+            "./lobeplan-maps without --out"),
     "exposure": ("lobeplan.report.exposure", "RF exposure distances (far-field estimate, US limits) with "
                  "the cautions that go with them"),
     "regions": ("lobeplan.report.regions", "country and continent names, codes and areas that match a text; "
@@ -152,8 +153,12 @@ def _run(args: argparse.Namespace, mod: object, state: dict) -> int:
     done = None
     if out_dir is not None:
         state["out"] = out_dir
-        staging = start_staging(out_dir)
+        staging = None
         try:
+            # held while the folder is made: a signal between its making and
+            # this try would leave it behind
+            with _signals_held():
+                staging = start_staging(out_dir)
             if hasattr(mod, "write_files"):
                 staged = mod.write_files(site, args, result, staging.folder)
             else:  # every verb honours --out: at least its result as JSON
@@ -164,10 +169,11 @@ def _run(args: argparse.Namespace, mod: object, state: dict) -> int:
                 finally:
                     state["moved"] = list(staging.moved)
         except BaseException as exc:
-            discard_staging(staging)
+            if staging is not None:
+                discard_staging(staging)
             if is_output_fault(exc) and not isinstance(exc, LobeplanError):
                 raise OutputError(f"--out: {out_dir}: cannot write ({exc.strerror or exc})") from None
-            if isinstance(exc, OutputError) and str(staging.folder) in str(exc):
+            if isinstance(exc, OutputError) and staging is not None and str(staging.folder) in str(exc):
                 # name the file where the user will look for it, not the staging folder
                 where = Path(out_dir)
                 raise OutputError(str(exc).replace(str(staging.folder), str(where).rstrip("/") or "/")) from None

@@ -172,8 +172,13 @@ def state_currents(state: State, n_elements: int) -> np.ndarray:
 
 
 def state_drive(spec: ArraySpec, option: ArrayOption, state: State, freq_hz: float,
-                sol: CoupledElements | None = None) -> Drive:
-    """Solve one state's drive (forced or fed) for 1 W input."""
+                sol: CoupledElements | None = None, designed_on: ArraySpec | None = None) -> Drive:
+    """Solve one state's drive (forced or fed) for 1 W input.
+
+    ``designed_on`` is the array an as-built state's network was cut for
+    (default ``spec``): give the site's own to see what another ground does
+    to the currents the network it has delivers.
+    """
     if sol is None:
         sol = coupled_elements(spec, option, freq_hz)
     n = sol.n_elements
@@ -183,7 +188,8 @@ def state_drive(spec: ArraySpec, option: ArrayOption, state: State, freq_hz: flo
             raise ValueError(f"state {state.name!r}: need one line per element ({n})")
         return drive_fed(z_base, spec.feed, freq_hz, state.line_m)
     if n > 1 and state_kind(state, freq_hz) == "as-built":
-        return network_drive(z_base, spec.feed, state_network(spec, option, state), freq_hz)
+        net = state_network(spec if designed_on is None else designed_on, option, state)
+        return network_drive(z_base, spec.feed, net, freq_hz)
     return drive_forced(z_base, state_currents(state, n))
 
 
@@ -285,7 +291,8 @@ def gain_toward_dbi(sol: CoupledElements, ground: Ground, base_current_a: np.nda
     return 10.0 * np.log10(np.maximum(gain, 10.0 ** (GAIN_FLOOR_DBI / 10.0)))
 
 
-def array_pattern(spec: ArraySpec, option: ArrayOption, state: State, freq_hz: float) -> ArrayResult:
+def array_pattern(spec: ArraySpec, option: ArrayOption, state: State, freq_hz: float,
+                  designed_on: ArraySpec | None = None) -> ArrayResult:
     """Gain pattern and drive of one switch state of one option on one band.
 
     Parameters
@@ -298,6 +305,9 @@ def array_pattern(spec: ArraySpec, option: ArrayOption, state: State, freq_hz: f
         there (coupling, line loss and the fixed parts: "as built"), except
         on their ``forced_freqs_hz``, where the forced currents hold.
     freq_hz : float
+    designed_on : ArraySpec, optional
+        The array the networks were designed on (default ``spec``); see
+        :func:`state_drive`.
 
     Returns
     -------
@@ -311,7 +321,7 @@ def array_pattern(spec: ArraySpec, option: ArrayOption, state: State, freq_hz: f
     moment method of :mod:`lobeplan.antenna.mom`.
     """
     sol = coupled_elements(spec, option, freq_hz)
-    drive = state_drive(spec, option, state, freq_hz, sol)
+    drive = state_drive(spec, option, state, freq_hz, sol, designed_on)
     kind = "forced" if option.n_elements == 1 and not state.is_fed else state_kind(state, freq_hz)
     i = drive.base_current_a
     ground_loss_w = 0.5 * float(np.sum(ground_loss(spec, option, freq_hz).ohm * np.abs(i) ** 2))
@@ -408,6 +418,17 @@ LOBE_WINDOW_DB = 1.0
 _TIE_DB = 1e-6  # gains this close count as equal, so ties break the same on every machine
 
 
+_STEP_MIN_DB = 0.1   # a drop this small next to a maximum is within a smooth lobe's top
+
+
+def _is_step(g: np.ndarray, i: int, side: int) -> bool:
+    """Whether the row falls from sample ``i`` toward ``side`` (-1, +1) as a step does, not as a lobe."""
+    n = g.size
+    first = g[i] - g[(i + side) % n]
+    second = g[(i + side) % n] - g[(i + 2 * side) % n]
+    return bool(first > _STEP_MIN_DB and second < 0.5 * first)
+
+
 def lobe_bearings_deg(row_dbi: np.ndarray, within_db: float = LOBE_WINDOW_DB) -> tuple[tuple[float, float], ...]:
     """Every lobe of one circular azimuth row within ``within_db`` of its peak.
 
@@ -425,7 +446,9 @@ def lobe_bearings_deg(row_dbi: np.ndarray, within_db: float = LOBE_WINDOW_DB) ->
         three samples around each local maximum. Gains are compared after
         rounding to 1e-6 dB and equal lobes are ordered by azimuth, so twin
         beams come out in the same order on every machine. A row without
-        any maximum (omnidirectional) has no lobe: ``()``.
+        any maximum (omnidirectional) has no lobe: ``()``. A maximum that is
+        the high side of a step (a foreground sector's edge) is not a lobe,
+        unless the row has nothing else.
     """
     g = np.asarray(row_dbi, dtype=float)
     n = g.size
@@ -436,6 +459,15 @@ def lobe_bearings_deg(row_dbi: np.ndarray, within_db: float = LOBE_WINDOW_DB) ->
     left, right = np.roll(q, 1), np.roll(q, -1)
     # a plateau of equal samples counts once, at its first sample
     peaks = np.flatnonzero((q > left) & (q >= right))
+    # A foreground sector's edge is a step in the blended gain: the sample on
+    # its high side is a local maximum without being a lobe. A smooth
+    # maximum falls faster the further it goes (concave: the second drop at
+    # least the first); a step falls once and then runs on nearly level.
+    smooth = [i for i in peaks if not (_is_step(g, i, -1) or _is_step(g, i, +1))]
+    if smooth or peaks.size == 0:
+        peaks = np.asarray(smooth, dtype=int)
+    else:  # only steps: the strongest still marks where the beam is
+        peaks = peaks[[int(np.argmax(g[peaks]))]]
     top = float(np.max(g))
     out = []
     for i in peaks:

@@ -5,7 +5,9 @@ place of the site's ground system; the loss per base comes from
 :func:`lobeplan.antenna.radials.radial_loss_ohm`, the option's reference state
 (its first forced-current state, else its first state) is solved again, and
 its gain toward the beam of the site's own system is compared with the site's
-own. Fed states are solved too: their true currents and front-to-back move
+own. The array stays as built: fed states keep their lines and as-built
+states keep the network designed on the site's own ground (it is not cut
+again for each radial system), so their true currents and front-to-back move
 with the loss, because the loss changes every base impedance.
 
 References
@@ -21,7 +23,7 @@ import numpy as np
 
 from .model import ArrayOption, ArraySpec, Radials
 from .mom import C0_M_S
-from .pattern import array_pattern, pattern_figures
+from .pattern import array_pattern, pattern_figures, state_kind
 from .radials import ground_loss
 
 __all__ = ["TABLE_COUNTS", "TABLE_LENGTHS_WAVELENGTHS", "DEFAULT_DEPTH_M", "FedChange", "RadialRow",
@@ -35,7 +37,7 @@ DEFAULT_WIRE_DIAMETER_MM = 2.0
 
 @dataclass(frozen=True, slots=True)
 class FedChange:
-    """A fed state's true currents and front-to-back with one radial system."""
+    """A fed or as-built state's true currents and front-to-back with one radial system."""
 
     state: str
     base_current_a: tuple[complex, ...]   # for 1 W into the junction
@@ -89,11 +91,14 @@ def _efficiency(res) -> float:
     return float(1.0 - res.ground_loss_w / base_w) if base_w > 0 else 0.0
 
 
-def _fed(spec, option, freq_hz) -> tuple[FedChange, ...]:
+def _fed(spec, option, freq_hz, designed_on=None, solved=None) -> tuple[FedChange, ...]:
+    """Every state whose currents follow the ground: its lines or its network as built on ``designed_on``."""
     out = []
     for s in option.states:
-        if s.is_fed:
-            res = array_pattern(spec, option, s, freq_hz)
+        kind = state_kind(s, freq_hz)
+        if kind == "fed" or (kind == "as-built" and option.n_elements > 1):
+            res = solved if solved is not None and solved.state_name == s.name else \
+                array_pattern(spec, option, s, freq_hz, designed_on)
             out.append(FedChange(s.name, tuple(complex(i) for i in res.base_current_a),
                                  pattern_figures(res.gain_dbi)["front_to_back_db"]))
     return tuple(out)
@@ -131,11 +136,11 @@ def radial_table(spec: ArraySpec, option: ArrayOption, freq_hz: float,
         for frac in lengths_wavelengths:
             length_m = float(frac) * wavelength_m
             alt = replace(spec, ground_loss_ohm=None, radials=Radials(int(n), length_m, depth, None, wire))
-            res = array_pattern(alt, option, state, freq_hz)
+            res = array_pattern(alt, option, state, freq_hz, designed_on=spec)
             rows.append(RadialRow(int(n), float(frac), length_m,
                                   float(np.mean(ground_loss(alt, option, freq_hz).ohm)), _efficiency(res),
                                   float(res.gain_dbi[el, az] - base.gain_dbi[el, az]),
-                                  _fed(alt, option, freq_hz)))
+                                  _fed(alt, option, freq_hz, spec, res)))
     return RadialTable(float(freq_hz), option.name, state.name, float(depth), float(wire), float(az), float(el),
                        float(np.mean(ground_loss(spec, option, freq_hz).ohm)), _efficiency(base),
-                       _fed(spec, option, freq_hz), tuple(rows))
+                       _fed(spec, option, freq_hz, None, base), tuple(rows))

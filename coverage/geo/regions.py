@@ -557,12 +557,19 @@ def _read_file(name: str, base_dir: str) -> MultiPolygon:
     """
     import stat
 
+    import errno
+
+    if "\x00" in name:  # the OS cannot take it (Python raises ValueError, not OSError)
+        raise RegionError(f"file:{name!r}: holds a NUL character; expected a file path")
     path = Path(name)
     if not path.is_absolute():
         path = Path(base_dir) / path
     try:
         mode = path.stat().st_mode
-    except OSError:
+    except OSError as exc:
+        if exc.errno == errno.ENAMETOOLONG:
+            raise RegionError(f"file:{name[:60]}...: the path is longer than the file system allows "
+                              "(at most 255 bytes a folder or file name); expected a shorter path") from None
         raise RegionError(f"file:{name}: no such file ({path})") from None
     if stat.S_ISDIR(mode):
         raise RegionError(f"file:{name}: is a folder, not a file ({path}); expected a vector file such as GeoJSON")

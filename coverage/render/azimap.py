@@ -36,7 +36,7 @@ from ..grid import AZIMUTH_DEG
 from ..safety import CAUTION_LINE
 from ..geo.regions import _area_m2
 from .fonts import drawable, setup as _font_setup
-from .scene import BandScene, kind_label
+from .scene import BandScene, kind_label, where_text
 
 __all__ = ["projection", "project_parts", "save_png_palette", "display_geometry", "PAPER_IN", "SPHERE_RADIUS_M", "RIM_KM", "draw_map", "map_figure", "outline_lines",
            "ADVANTAGE_RANGE_DB", "STATE_COLOURS"]
@@ -585,7 +585,7 @@ def _title_block(fig, scene: BandScene, date_text: str, w_in: float, h_in: float
     what = scene.option if scene.option.startswith(scene.layout) else f"{scene.option} ({scene.layout}{spacing})"
     width_in = w_in - 2 * 0.6
     y = 0.86
-    where = "one vertical, no baseline" if scene.layout == "single" else f"baseline along {scene.orientation_deg:.1f}°"
+    where = where_text(scene.layout, scene.orientation_deg)
     y = _fit_line(fig, drawable(f"{scene.locator}  ·  {lat} {lon}  ·  {what}  ·  "
                                 f"{where}{score}"), x0, y, width_in, h_in)
     how = ("median takeoff angle the goals need on this band" if scene.takeoff_from_needs

@@ -136,6 +136,26 @@ def _foreground_strip(ax, foreground, y_top: float) -> None:
                 fontsize=6.0, color=col, zorder=5, path_effects=_halo(), clip_on=True)
 
 
+def _note(receive: bool, n_foreground: int) -> str:
+    """The definitions under the charts, wrapped to the 13 in page.
+
+    200 characters of 6.8 pt fit a line with room to spare.
+    """
+    import textwrap
+
+    what = ("advantage in directivity (over the sky mean) over one vertical" if receive
+            else "advantage over one vertical")
+    parts = [f"Boxes: each goal's bearings (great-circle span) and needed takeoff angles (10th-90th "
+             f"percentile), with that state's {what} toward it, edge -6 (ember) to +6 dB (spruce). "
+             f"Contours at 3 dB (solid) and 10 dB (dashed) under each state's peak.",
+             "Dotted: the band's key takeoff angle, the median of every goal's needed takeoff angles on the band "
+             "(weighted as the plan weighs them); the takeoff cut follows each state's strongest bearing there."]
+    if n_foreground:
+        parts.append("Strip along the bottom: foreground sectors (ground beyond the array by true bearing, from "
+                     "the distance given); the gains blend the grounds each ray's first Fresnel zone falls on.")
+    return "\n".join(line for p in parts for line in textwrap.wrap(p, 200))
+
+
 def band_figure(rows: list[dict], station_name: str = "", foreground=()):
     """The figure of one band and one option (not saved).
 
@@ -171,9 +191,12 @@ def band_figure(rows: list[dict], station_name: str = "", foreground=()):
     takeoff = first["key_takeoff_deg"]
     takeoff_el = first["key_takeoff_deg"] if takeoff is not None else first["peak_elevation_deg"]
 
-    fig = plt.figure(figsize=(13.0, max(5.8, 2.35 * n + 1.5)))
+    note = _note(receive, len(foreground))
+    # each line of the note under the charts takes about 0.13 in (6.8 pt at 1.4 line spacing)
+    extra_in = 0.13 * max(0, note.count("\n") + 1 - 2)
+    fig = plt.figure(figsize=(13.0, max(5.8, 2.35 * n + 1.5) + extra_in))
     gs = GridSpec(2 * n, 4, figure=fig, width_ratios=(1.45, 0.03, 0.11, 1.05), left=0.06, right=0.97,
-                  top=1.0 - 0.85 / fig.get_figheight(), bottom=0.95 / fig.get_figheight(),
+                  top=1.0 - 0.85 / fig.get_figheight(), bottom=(0.95 + extra_in) / fig.get_figheight(),
                   hspace=1.1 if n > 1 else 0.5, wspace=0.08)
     needed = [g["elevation_deg"]["p90"] for g in first["goals"] if g["elevation_deg"]["p90"] is not None]
     # room for the highest box and its label, in 15 deg steps; the full sky only if the needs go there
@@ -302,17 +325,7 @@ def band_figure(rows: list[dict], station_name: str = "", foreground=()):
     fig.suptitle(drawable(f"{head}{first['band']}, {first['option']}, {along}"
                           + ("; receive option" if receive else "")), fontsize=10.5, color=INK, x=0.06,
                  ha="left")
-    what = ("advantage in directivity (over the sky mean) over one vertical" if receive
-            else "advantage over one vertical")
-    fig.text(0.06, 0.012, f"Boxes: each goal's bearings (great-circle span) and needed takeoff angles (10th-90th "
-             f"percentile), with that state's {what} toward it, edge -6 (ember) to +6 dB (spruce). "
-             f"Contours at 3 dB (solid) and 10 dB (dashed) under each state's peak.\nDotted: the band's key "
-             f"takeoff angle, the median of every goal's needed takeoff angles on the band (weighted as the plan "
-             f"weighs them); the takeoff cut follows each state's strongest bearing there."
-             + ("\nStrip along the bottom: foreground sectors (ground beyond the array by true bearing, from "
-                "the distance given); the gains blend the grounds each ray's first Fresnel zone falls on."
-                if len(foreground) else ""), fontsize=6.8,
-             color=INK, va="bottom", linespacing=1.4)
+    fig.text(0.06, 0.012, note, fontsize=6.8, color=INK, va="bottom", linespacing=1.4)
     return fig
 
 

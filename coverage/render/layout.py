@@ -9,6 +9,7 @@ on its design band) and a scale bar. Drawn from a staking plan
 from __future__ import annotations
 
 import math
+import textwrap
 from pathlib import Path
 
 import numpy as np
@@ -69,7 +70,7 @@ def layout_figure(stakes, allowed_deg, beams, title: str):
             ax.plot(*np.stack([centre - reach * d, centre + reach * d]).T, color=INK, linewidth=0.8,
                     linestyle=(0, (6, 3)), zorder=1, gid="baseline",
                     label=f"baseline along {sp.orientation_deg:.1f}°")
-        for r in sp.runs:
+        for r in sp.runs if len(pts) > 1 else ():   # one vertical is fed at its base: no junction, no runs
             s = sp.elements[r.element - 1]
             ax.plot([jx, s.east_m], [jy, s.north_m], color="#8a6d3b", linewidth=1.4, zorder=2,
                     gid=f"run:{r.element}", label="line runs from the junction" if r.element == 1 else None)
@@ -77,7 +78,8 @@ def layout_figure(stakes, allowed_deg, beams, title: str):
         for s in sp.elements:
             ax.annotate(s.name, (s.east_m, s.north_m), xytext=(6, 6), textcoords="offset points", fontsize=10,
                         fontweight="bold", color=INK, zorder=5)
-        ax.plot([jx], [jy], "s", color="#8a6d3b", markersize=7, zorder=4, gid="junction", label="junction")
+        if len(pts) > 1:   # one vertical is fed at its base: no junction
+            ax.plot([jx], [jy], "s", color="#8a6d3b", markersize=7, zorder=4, gid="junction", label="junction")
         drawn: list[float] = []
         for k, (state, bearings) in enumerate(bm.items()):
             col = STATE_COLOURS[k % len(STATE_COLOURS)]
@@ -111,10 +113,12 @@ def layout_figure(stakes, allowed_deg, beams, title: str):
         ax.grid(True, color="#e2e2e2", linewidth=0.5)
         ax.set_title(sp.option, fontsize=10, loc="left", color=INK)
         ax.legend(fontsize=6.8, loc="upper center", bbox_to_anchor=(0.5, -0.09), ncol=2, frameon=False)
-    fig.suptitle(title, fontsize=10.5, color=INK, fontweight="bold")
+    # about 12 characters of 10.5 pt bold per inch: wrap the title to the page it sits on
+    lines = textwrap.wrap(title, max(30, int(12 * 5.4 * n)))
+    fig.suptitle("\n".join(lines), fontsize=10.5, color=INK, fontweight="bold")
     rows = max((len(b) + 4 + 1) // 2 for b in beams) if beams else 3  # legend rows below each plan
     bottom = min(0.4, (0.45 + 0.17 * rows + 0.5) / fig.get_figheight())
-    fig.tight_layout(rect=(0, bottom, 1, 0.96))
+    fig.tight_layout(rect=(0, bottom, 1, 1 - 0.28 * len(lines) / fig.get_figheight()))
     fig.text(0.01, 0.012, "Before digging or driving stakes, have buried services located; keep elements, radials "
              "and guys clear of power lines (nothing may reach one if it falls). " + CAUTION_LINE,
              fontsize=6.6, color="#6b3a1e", wrap=True)

@@ -69,7 +69,9 @@ def elevation_figure(site, plan):
             # the weights sum to the open fraction: a goal that is seldom open
             # shows a low histogram, not a tall one
             share = 100.0 * marg
-            label = gb.goal_name + (" (long path)" if gb.path == "long" else "")
+            # a default name is the whole region string (a file: path can be long): keep the legend beside the panel
+            name = gb.goal_name if len(gb.goal_name) <= 40 else gb.goal_name[:39] + "\u2026"
+            label = name + (" (long path)" if gb.path == "long" else "")
             if label in seen:
                 continue
             seen.add(label)

@@ -15,7 +15,8 @@ import numpy as np
 from ..grid import AZIMUTH_DEG, ELEVATION_DEG, to_true_bearing
 
 __all__ = ["Lobe", "GoalShade", "AvoidShade", "ForegroundShade", "BandScene", "band_scene", "chosen_option",
-           "propagation_text", "key_takeoff_deg", "true_bearing_row", "lobe_radius_km", "slug", "kind_label"]
+           "propagation_text", "key_takeoff_deg", "true_bearing_row", "lobe_radius_km", "slug", "kind_label",
+           "where_text"]
 
 
 @dataclass(frozen=True)
@@ -108,6 +109,11 @@ def kind_label(kind: str, design_band: str | None = None) -> str:
     if kind == "fed":
         return "its own lines"
     return "forced"
+
+
+def where_text(layout: str, orientation_deg: float) -> str:
+    """How an option stands: its baseline bearing, or that one vertical has none."""
+    return "one vertical, no baseline" if layout == "single" else f"baseline along {orientation_deg:.1f}\u00b0"
 
 
 def slug(band_name: str) -> str:

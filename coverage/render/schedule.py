@@ -20,7 +20,7 @@ from ..safety import CAUTION_LINE
 from ..propagation.model import hour_ranges_text
 from .azimap import INK, STATE_COLOURS
 from .panels import NEED_COLOURS, _pyplot, _save
-from .scene import chosen_option, slug
+from .scene import chosen_option, slug, where_text
 
 __all__ = ["schedule_file_name", "schedule_figure", "switch_card_figure", "draw_schedule_figure",
            "draw_switch_card", "card_entries", "goal_centres", "A4_IN"]
@@ -110,7 +110,7 @@ def schedule_figure(site, plan, schedule, band: str):
     ax.legend(handles=handles, loc="upper left", bbox_to_anchor=(1.02, 1.0), fontsize=7.5, frameon=False)
     fig.text(0.08, 1 - 0.35 / h_in, f"{site.station.name}: {band}, switch state by UT hour and month", fontsize=11,
              fontweight="bold", color=INK)
-    fig.text(0.08, 1 - 0.6 / h_in, f"{op.option}, baseline along {theta:.1f}\u00b0; the state with the best score over "
+    fig.text(0.08, 1 - 0.6 / h_in, f"{op.option}, {where_text(op.layout, theta)}; the state with the best score over "
              f"the goals open in each hour; blank: no goal open on {100 * schedule.closed_share:.0f} % of its points",
              fontsize=7.5, color=INK)
     fig.text(0.08, 0.15 / h_in, "Sunrise and sunset on the 15th of each month at the station and at each goal's "
@@ -164,7 +164,7 @@ def switch_card_figure(site, plan, schedule, date_text: str):
     fig.patches.append(plt.Rectangle((0, 0), 1, 1, transform=fig.transFigure, facecolor="white", zorder=-1))
     fig.text(left, 1 - 0.6 / h, f"Switch card: {site.station.name}", fontsize=20, fontweight="bold", color=INK)
     months = ", ".join(_MONTHS[m - 1] for m in schedule.months) if len(schedule.months) < 12 else "all months"
-    fig.text(left, 1 - 0.95 / h, f"{op.option}, baseline along {theta:.1f}\u00b0   \u2022   {months}", fontsize=12,
+    fig.text(left, 1 - 0.95 / h, f"{op.option}, {where_text(op.layout, theta)}   \u2022   {months}", fontsize=12,
              color=INK)
     fig.text(left, 1 - 1.15 / h, "Hours are UT. Each cell: the state that serves that goal best and when.\n"
              "closed: the band never opens to the goal; empty: the goal does not use the band.", fontsize=9.5,

@@ -113,6 +113,13 @@ def _network_row(spec, option, state, band, power) -> dict:
     out["checks"] = [{"freq_mhz": round(c.freq_hz / 1e6, 4), "element_currents": current_rows(c.base_current_a),
                       "forward_gain_dbi": round(c.forward_gain_dbi, 2), "front_to_back_db": round(c.front_to_back_db, 2),
                       "swr": None if c.swr is None else round(c.swr, 3)} for c in chk.checks]
+    if option.receive:
+        # nothing transmits through a receive option: no transmitter match, no part stress, no SWR
+        out["parts"] = [p for p in out["parts"] if not p["name"].startswith("match ")]
+        out["stress"] = [p for p in out["stress"] if not p["name"].startswith("match ")]
+        out["power_w"] = None
+        for c in out["checks"]:
+            c["swr"] = None
     return out
 
 
@@ -200,6 +207,8 @@ def _design(spec, option, band) -> dict:
             net = design_network(z, spec.feed, band.freq_hz, w, option.positions_m, option.junction_point_m,
                                  spec.line_slack_m)
             entry["network"] = network_dict(net)
+            if option.receive:   # no transmitter match on a receive option
+                entry["network"]["parts"] = [p for p in entry["network"]["parts"] if not p["name"].startswith("match ")]
             entry["line_m"] = [round(x, 3) for x in net.line_m]
             entry["current_error"] = round(net.current_error, 5)
             if net.form == "junction-lines" and not option.receive:
@@ -269,6 +278,8 @@ def _suggest_text(result: dict, site_options: int) -> str:
     out = [f"# Suggested switch states (target: {result['target']}); paste into the site file.",
            f"# forward gain and F/B along the baseline at {result['elevation_deg']:g} deg elevation, 1 W into "
            "the bases; the currents are forced (their network is designed on the band named).", ""]
+    if not result["suggestions"]:
+        out.append("# nothing to suggest: every option is one vertical, which has no phasing to choose")
     for s in result["suggestions"]:
         if s["amplitude"] is None:
             out.append(f"# {s['option']}, {s['band']}: {s['note']}")
@@ -384,7 +395,8 @@ def _network_text(n) -> list[str]:
                    "more than 0.1): this state will not give its forced pattern; see the checks below")
     if "stress" in n:
         for p in n["stress"]:
-            out.append(f"      {p['name']}: {_one(p)}, {p['voltage_v_peak']:.0f} V peak, {p['current_a_rms']:.2f} A rms "
+            out.append(f"      {p['name']}: {_one(p)}" if n["power_w"] is None else
+                       f"      {p['name']}: {_one(p)}, {p['voltage_v_peak']:.0f} V peak, {p['current_a_rms']:.2f} A rms "
                        f"at {n['power_w']:g} W")
     else:
         for p in n["parts"]:
@@ -500,7 +512,7 @@ def _table_text(b, rad) -> list[str]:
         def cur(entry, name=fed["state"]):
             a = next(x for x in entry["as_built"] if x["state"] == name)
             return (", ".join(f"{c['amplitude']:.2f}/{c['phase_deg']:+.0f}" for c in a["element_currents"])
-                    + f", F/B {a['front_to_back_db']:.1f} dB")
+                    + f", F/B {a['front_to_back_db'] if abs(a['front_to_back_db']) >= 0.05 else 0.0:.1f} dB")
         out.append(f"    as built {fed['state']!r}: now {cur(ref)}; with {lo['count']} x {lo['length_wavelengths']:g} "
                    f"wavelength {cur(lo)}; with {hi['count']} x {hi['length_wavelengths']:g} wavelength {cur(hi)}")
     return out

@@ -46,6 +46,8 @@ def ground_summary(site) -> dict:
     return {
         "ground": spec.ground.name,
         "ground_loss_source": source,
+        # neither radials nor ground_loss_ohm in the site: the loss is the default
+        "ground_loss_default": spec.ground_loss_ohm is None and spec.radials is None,
         "ground_loss_ohm": loss,
         "radials": radials_json(spec),
         "foreground": foreground_json(spec),
@@ -58,7 +60,8 @@ def ground_line(summary: dict) -> str:
     if summary["ground_loss_source"] == "radials":
         how = f"from the radials ({system_text(r)})"
     else:
-        how = "as given (ground_loss_ohm)" if r is None else "as given (ground_loss_ohm overrides the radials)"
+        how = ("the default (no [array.radials], no ground_loss_ohm)" if summary.get("ground_loss_default")
+               else "as given (ground_loss_ohm)" if r is None else "as given (ground_loss_ohm overrides the radials)")
     bands = list(summary["ground_loss_ohm"])
     options = list(summary["ground_loss_ohm"][bands[0]]) if bands else []
     values = "; ".join(f"{o} " + ", ".join(f"{summary['ground_loss_ohm'][b][o]:.1f}" for b in bands)

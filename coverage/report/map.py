@@ -62,7 +62,9 @@ def check_arguments(args) -> None:
 
 
 def default_out(args) -> str:
-    return "maps"
+    # a folder of its own, like demo's: a run inside the checkout must not
+    # rewrite the committed gallery in maps/
+    return "lobeplan-maps"
 
 
 def map_file_name(band_name: str, fmt: str = "png") -> str:
@@ -172,7 +174,8 @@ def write_plan_figures(site, plan, args, out_dir) -> list[Path]:
     written = [draw_map(band_scene(site, plan, b.name), out / map_file_name(b.name), date_text, "a4", DEFAULT_DPI)
                for b in site.bands]
     written.append(draw_elevation_panel(site, plan, out / "elevation.png"))
-    if any(op.layout != "single" for op in plan.options):   # one vertical: no bearing to sweep
+    # one vertical, or a fixed orientation_deg: no bearings to score against each other
+    if any(op.layout != "single" and len(op.orientation_deg) > 1 for op in plan.options):
         written.append(draw_orientation_panel(site, plan, out / "orientation.png"))
     written.append(write_geojson(site, plan, out / "plan.geojson"))
     return written

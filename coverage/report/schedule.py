@@ -64,8 +64,9 @@ def schedule_rows(schedule) -> list[dict]:
 
 
 def schedule_options(plan) -> list[dict]:
-    return [{"option": op.option, "orientation_deg": _r(op.best_orientation_deg, 1),
+    return [{"option": op.option, "layout": op.layout, "orientation_deg": _r(op.best_orientation_deg, 1),
              "states": list(op.state_names)} for op in plan.options]
+
 
 
 def build_from_plan(site, plan, schedule) -> dict:
@@ -138,7 +139,8 @@ def format_text(result: dict) -> str:
             out += [f"{opt['option']}: no allowed bearing serves an open goal", ""]
             continue
         codes = {s: chr(ord("A") + i) for i, s in enumerate(opt["states"])}
-        out.append(f"{opt['option']}, baseline along {opt['orientation_deg']:.1f}°   states: "
+        from ..render.scene import where_text
+        out.append(f"{opt['option']}, {where_text(opt.get('layout', ''), opt['orientation_deg'])}   states: "
                    + ", ".join(f"{c} = {s}" for s, c in codes.items()))
         bands = list(dict.fromkeys(r["band"] for r in rows))
         for band in bands:
