@@ -27,6 +27,9 @@ def _disc_points(area, n=4000, seed=3):
 @example(lat=-47.0, lon=14.0, radius=50.0)       # lost a 20 deg wedge (issue 16)
 @example(lat=89.9, lon=0.0, radius=3000.0)       # centre next to the pole
 @example(lat=0.0, lon=180.0, radius=8000.0)      # across the antimeridian
+@example(lat=31.8359375, lon=-180.0, radius=3.0)  # a small circle centred on the antimeridian
+@example(lat=31.8359375, lon=180.0, radius=3.0)
+@example(lat=-28.782469150122203, lon=-180.0, radius=4212.01039355558)  # missed its centre by round-off
 def test_circle_outline_holds_its_centre_and_its_disc(lat, lon, radius):
     area = R.resolve(f"circle:{lat},{lon},{radius}", STATION)
     assert area.geometry.is_valid

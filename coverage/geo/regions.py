@@ -529,6 +529,11 @@ def _polar_region(lon0: float, lat0: float, az_from: float, az_to: float,
                              ring_az.ravel(), ring_d.ravel() * 1000.0)
     lons = np.asarray(lons).reshape(ring_az.shape)
     lats = np.asarray(lats).reshape(ring_az.shape)
+    # the centre itself, exactly: the direct problem at zero distance returns it
+    # with round-off that differs by azimuth, which left a notch of 1e-14 deg
+    # between neighbouring cells' corners there
+    at_centre = ring_d == 0.0
+    lons[at_centre], lats[at_centre] = lon0, lat0
     cells = []
     for row in range(ring_az.shape[0]):
         cells.extend(_cell_polygon(lons[row], lats[row]))
