@@ -369,3 +369,20 @@ def test_suggest_on_one_vertical_says_why_there_is_nothing(write_site, capsys):
     path = write_site(SINGLE)
     assert main(["feed", str(path), "--suggest", "goals"]) == 0
     assert "no phasing to choose" in capsys.readouterr().out
+
+
+def test_short_receive_elements_get_no_base_coil():
+    # common practice: receive verticals are short on purpose and are not
+    # resonated or matched, so the transmit advice (a base coil at a stated Q)
+    # does not apply to them; a transmit option of the same height gets it
+    from lobeplan.fileio import dumps_json
+    from lobeplan.report import feed as feed_verb
+    from lobeplan.site import element_caveats
+
+    site = loads(RECEIVE, file="t.toml")
+    (band,) = json.loads(dumps_json(feed_verb.build(site, _Args())))["bands"]
+    assert band["loading_coil"] is None
+    assert element_caveats(site) == ()
+    tx = loads(RECEIVE.replace('use = "receive"\n', ""), file="t.toml")
+    (band,) = json.loads(dumps_json(feed_verb.build(tx, _Args())))["bands"]
+    assert band["loading_coil"] is not None and element_caveats(tx)

@@ -322,7 +322,7 @@ def build(site, args=None) -> dict:
                 "ground_loss_per_element_ohm": [round(float(x), 3) for x in loss.ohm],
                 "impedance_matrix_ohm": [[pair(z) for z in row] for row in sol.impedance_ohm],
                 "states": [_state_row(spec, option, s, band, power) for s in option.states],
-                "loading_coil": _loading(spec, band),
+                "loading_coil": None if option.receive else _loading(spec, band),
                 "design": _design(spec, option, band),
                 **radial_table_json(radial_table(spec, option, band.freq_hz)),
             })
