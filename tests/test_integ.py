@@ -386,3 +386,21 @@ def test_short_receive_elements_get_no_base_coil():
     tx = loads(RECEIVE.replace('use = "receive"\n', ""), file="t.toml")
     (band,) = json.loads(dumps_json(feed_verb.build(tx, _Args())))["bands"]
     assert band["loading_coil"] is not None and element_caveats(tx)
+
+
+def test_plan_page_lobes_are_the_maps_lobes_with_a_foreground():
+    # the page and the maps draw the same lobes (one scene helper): with sea
+    # beyond the array the lobes carry its low-angle gain on both
+    import numpy as np
+
+    from lobeplan.plan.planner import make_plan
+    from lobeplan.render.page import page_drawing
+    from lobeplan.render.scene import band_scene
+
+    text = PAIR_BUILT + '\n[[array.foreground]]\nbearing_deg = [0, 120]\nfrom_m = 30\nground = "sea"\n'
+    site = loads(text, file="t.toml")
+    plan = make_plan(site)
+    scene = band_scene(site, plan, "40 m")
+    (drawn,) = [o for o in page_drawing(site, plan)["options"] if o["option"] == scene.option]
+    for lobe in scene.lobes:
+        assert np.abs(np.array(drawn["lobes_km"]["40 m"][lobe.state]) - lobe.radius_km).max() <= 0.5

@@ -31,7 +31,6 @@ from pathlib import Path
 import numpy as np
 
 from ..fileio import atomic_write_text, dumps_json
-from ..grid import ELEVATION_DEG
 
 __all__ = ["SIMPLIFY_DEG", "script_json", "svg_path", "page_drawing", "page_html", "write_page"]
 
@@ -160,15 +159,11 @@ def _size_km(proj, src, small) -> int:
 
 def _option_lobes(site, plan, op, theta_deg: float) -> dict:
     """Lobe radii (km, whole numbers, 360 true bearings) per band and state."""
-    from .scene import key_takeoff_deg, lobe_radius_km, true_bearing_row
+    from .scene import lobe_radius_km, lobe_rows
 
     bands = {}
     for band in site.bands:
-        takeoff = key_takeoff_deg(plan.goal_bands, band.name)
-        if takeoff is None:  # nothing open: the elevation where the first state peaks, as on the maps
-            first = op.patterns[(band.name, op.state_names[0])].gain_dbi
-            takeoff = float(ELEVATION_DEG[np.unravel_index(int(np.argmax(first)), first.shape)[0]])
-        rows = [true_bearing_row(op.patterns[(band.name, s)].gain_dbi, takeoff, theta_deg) for s in op.state_names]
+        _, _, rows = lobe_rows(plan, op, band.name, theta_deg)  # as the maps draw them, foreground included
         top = max(float(r.max()) for r in rows)
         bands[band.name] = {s: [int(v) for v in np.rint(lobe_radius_km(r, top, site.map.lobe_floor_db,
                                                                         site.map.lobe_peak_km))]

@@ -15,7 +15,7 @@ import numpy as np
 from ..grid import AZIMUTH_DEG, ELEVATION_DEG, to_true_bearing
 
 __all__ = ["Lobe", "GoalShade", "AvoidShade", "ForegroundShade", "BandScene", "band_scene", "chosen_option",
-           "propagation_text", "key_takeoff_deg", "true_bearing_row", "lobe_radius_km", "slug", "kind_label",
+           "propagation_text", "key_takeoff_deg", "lobe_rows", "true_bearing_row", "lobe_radius_km", "slug", "kind_label",
            "where_text"]
 
 
@@ -175,13 +175,7 @@ def band_scene(site, plan, band_name: str) -> BandScene:
     from ..geo.regions import goal_area, region_area
 
     op, theta, entry = chosen_option(plan)
-    takeoff = key_takeoff_deg(plan.goal_bands, band_name)
-    from_needs = takeoff is not None
-    if takeoff is None:  # nothing open: show the lobes where the first state peaks
-        first = op.patterns[(band_name, op.state_names[0])].gain_dbi
-        takeoff = float(ELEVATION_DEG[np.unravel_index(int(np.argmax(first)), first.shape)[0]])
-
-    rows_g = [_state_row(op, band_name, s, takeoff, theta) for s in op.state_names]
+    takeoff, from_needs, rows_g = lobe_rows(plan, op, band_name, theta)
     top = max(float(r.max()) for r in rows_g)
     from ..antenna.pattern import lobe_bearings_deg
 
@@ -268,6 +262,22 @@ def propagation_text(site) -> str:
     values, name = (flux, "F10.7") if flux else (spots, "R12")
     solar = f"{name} {min(values):g}" if min(values) == max(values) else f"{name} {min(values):g}-{max(values):g}"
     return f"propagation model: climatology, {when}, {solar}, {hours}"
+
+
+def lobe_rows(plan, op, band_name: str, theta_deg: float) -> tuple[float, bool, list[np.ndarray]]:
+    """(takeoff_deg, from_needs, rows): every state's gain over true bearings at
+    the band's key takeoff angle, the foreground blended, as the maps and the
+    plan page draw the lobes.
+
+    With nothing open on the band the takeoff angle is where the first state
+    peaks (``from_needs`` False).
+    """
+    takeoff = key_takeoff_deg(plan.goal_bands, band_name)
+    from_needs = takeoff is not None
+    if takeoff is None:
+        first = op.patterns[(band_name, op.state_names[0])].gain_dbi
+        takeoff = float(ELEVATION_DEG[np.unravel_index(int(np.argmax(first)), first.shape)[0]])
+    return takeoff, from_needs, [_state_row(op, band_name, s, takeoff, theta_deg) for s in op.state_names]
 
 
 def _state_row(op, band_name: str, state: str, takeoff_deg: float, theta_deg: float) -> np.ndarray:
