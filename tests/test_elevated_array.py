@@ -136,3 +136,22 @@ def test_radials_over_soil_radiate_a_little_horizontal_polarization():
     sol = solve_elevated_array(H_M, 0.02, 2.0, 4, 10.0, 1e-3, ((0.0, 0.0),), F_HZ, GROUND_CLASSES["average"])
     g = gain_from_currents_dbi(sol, GROUND_CLASSES["average"], np.array([1.0]), 1.0)
     assert np.ptp(g[20]) < 0.5
+
+
+def test_the_coarse_rules_for_distant_pairs_change_nothing_that_matters():
+    # the pair integrals use 2 x 2 and 3 x 3 points for distant segments; the
+    # fine rule everywhere gives the same base impedances within 1e-4
+    # (relative), far below what the model's approximations leave
+    from lobeplan.antenna import elevated
+
+    args = (H_M, 0.02, 2.0, 4, 10.0, 1e-3, PAIR, F_HZ, GROUND_CLASSES["average"], True, 40.0)
+    quick = elevated._solve_array(*args).impedance_ohm
+    saved = elevated._NEAR_FACTOR
+    try:
+        elevated._NEAR_FACTOR = 1e9
+        elevated._solve_array.cache_clear()
+        fine = elevated._solve_array(*args).impedance_ohm
+    finally:
+        elevated._NEAR_FACTOR = saved
+        elevated._solve_array.cache_clear()
+    assert np.max(np.abs(quick - fine)) < 1e-4 * np.max(np.abs(fine))

@@ -89,13 +89,16 @@ __all__ = ["ElevatedSolution", "ElevatedArray", "solve_elevated", "solve_elevate
 
 # Quadrature of the Galerkin pair integrals: near pairs (segments within
 # about two segment lengths of each other, and every segment with itself and
-# its image close by) get the fine rule; the rest a coarse one, whose error on
-# a kernel this smooth at that distance is under 1e-4 (the tests compare a
-# whole solution with the fine rule everywhere).
+# its image close by) get the fine rule; the rest 3 x 3 points, and pairs
+# over six lengths apart 2 x 2, whose error on a kernel this smooth at that
+# distance is under 1e-4 (a test compares a whole solution with the fine
+# rule everywhere).
 _NEAR_T, _NEAR_TW = np.polynomial.legendre.leggauss(6)    # test points per segment
 _NEAR_S, _NEAR_SW = np.polynomial.legendre.leggauss(10)   # source points per segment (in u)
-_FAR_T, _FAR_TW = np.polynomial.legendre.leggauss(3)
+_FAR_T, _FAR_TW = np.polynomial.legendre.leggauss(3)   # pairs beyond the near ones
 _FAR_S, _FAR_SW = np.polynomial.legendre.leggauss(3)
+_FAREST = np.polynomial.legendre.leggauss(2)            # pairs over six segment lengths apart
+_FAREST_FACTOR = 6.0
 _GI_T, _GI_W = _NEAR_S, _NEAR_SW                        # source rule of the surface field
 _FF_T, _FF_W = np.polynomial.legendre.leggauss(3)       # far field: 3 points per stretch of a wire
 _FF_STRETCH_WAVELENGTHS = 0.1                            # ... no longer than this
@@ -304,13 +307,16 @@ def _integrals(k, start, end, radius, src_start, src_end, src_radius):
         qi = np.tile(np.arange(n), p.size)
         # the reduced kernel at the thicker wire's radius (a thin radial seen from the vertical's surface)
         a = np.maximum(radius[pi], src_radius[qi])
-        vals = _pair_integrals(k, start[pi], end[pi], src_start[qi], src_end[qi], a,
-                               _FAR_T, _FAR_TW, _FAR_S, _FAR_SW)
-        near = np.linalg.norm(mid_p[pi] - mid_q[qi], axis=1) < _NEAR_FACTOR * (len_p[pi] + len_q[qi])
-        if np.any(near):
-            pn, qn = pi[near], qi[near]
-            vals[:, near] = _pair_integrals(k, start[pn], end[pn], src_start[qn], src_end[qn], a[near],
-                                            _NEAR_T, _NEAR_TW, _NEAR_S, _NEAR_SW)
+        dist = np.linalg.norm(mid_p[pi] - mid_q[qi], axis=1) / (len_p[pi] + len_q[qi])
+        vals = np.empty((5, pi.size), dtype=complex)
+        for sel, (gt, gtw, gs, gsw) in (
+                (dist >= _FAREST_FACTOR, _FAREST + _FAREST),
+                ((dist >= _NEAR_FACTOR) & (dist < _FAREST_FACTOR), (_FAR_T, _FAR_TW, _FAR_S, _FAR_SW)),
+                (dist < _NEAR_FACTOR, (_NEAR_T, _NEAR_TW, _NEAR_S, _NEAR_SW))):
+            if np.any(sel):
+                ps_, qs_ = pi[sel], qi[sel]
+                vals[:, sel] = _pair_integrals(k, start[ps_], end[ps_], src_start[qs_], src_end[qs_], a[sel],
+                                               gt, gtw, gs, gsw)
         out[:, p, :] = vals.reshape(5, p.size, n)
     return out
 
@@ -577,12 +583,11 @@ def _far_field_points(sol: ElevatedArray) -> tuple[np.ndarray, np.ndarray, np.nd
     x = 0.5 * (_FF_T + 1.0)
     pts, tang, wcur = [], [], []
     n_seg = start.shape[0]
-    first = 0
-    while first < n_seg:
-        last = first
-        while (last + 1 < n_seg and np.allclose(start[last + 1], end[last], atol=1e-9)
-               and np.allclose(uq[last + 1], uq[first], atol=1e-9)):
-            last += 1
+    joined = (np.all(np.abs(start[1:] - end[:-1]) < 1e-9, axis=1)
+              & np.all(np.abs(uq[1:] - uq[:-1]) < 1e-9, axis=1))
+    firsts = np.concatenate([[0], np.flatnonzero(~joined) + 1])
+    lasts = np.concatenate([firsts[1:] - 1, [n_seg - 1]])
+    for first, last in zip(firsts, lasts):
         segs = np.arange(first, last + 1)
         cum = np.concatenate([[0.0], np.cumsum(lq[segs])])
         total = cum[-1]
@@ -597,7 +602,6 @@ def _far_field_points(sol: ElevatedArray) -> tuple[np.ndarray, np.ndarray, np.nd
         pts.append(start[first] + s_pts[:, None] * uq[first][None, :])
         tang.append(np.repeat(uq[first][None, :], s_pts.size, axis=0))
         wcur.append(w_pts[:, None] * i_pts)
-        first = last + 1
     return np.concatenate(pts), np.concatenate(tang), np.concatenate(wcur)
 
 
@@ -637,17 +641,22 @@ def radiation_vectors(sol: ElevatedArray, elevation_deg, azimuth_deg) -> tuple[n
     shape = (n_port, psi.size, az.size)
     v_dir, v_img, h_dir, h_img = (np.empty(shape, dtype=complex) for _ in range(4))
     ca, sa = np.cos(az), np.sin(az)
-    for row, p in enumerate(psi):
-        cp, sp = math.cos(p), math.sin(p)
-        horiz = np.exp(1j * k * cp * (np.outer(ca, pts[:, 0]) + np.outer(sa, pts[:, 1])))   # (az, P)
-        up = np.exp(1j * k * sp * pts[:, 2])
-        for moments, v_out, h_out, sign in ((m_dir, v_dir, h_dir, 1.0), (m_img, v_img, h_img, -1.0)):
-            ph = horiz * (up if sign > 0 else np.conj(up))[None, :]
-            nxyz = (ph @ moments.reshape(moments.shape[0], -1)).reshape(az.size, 3, n_port)
-            nx, ny, nz = nxyz[:, 0, :], nxyz[:, 1, :], nxyz[:, 2, :]
+    proj = np.outer(ca, pts[:, 0]) + np.outer(sa, pts[:, 1])                    # (az, P)
+    moments = np.stack([m_dir, m_img]).reshape(2, pts.shape[0], -1)             # (2, P, 3 port)
+    rows = max(1, 2_000_000 // max(1, az.size * pts.shape[0]))
+    for r0 in range(0, psi.size, rows):
+        cp, sp = np.cos(psi[r0:r0 + rows]), np.sin(psi[r0:r0 + rows])
+        horiz = np.exp(1j * k * cp[:, None, None] * proj[None, :, :])               # (row, az, P)
+        up = np.exp(1j * k * sp[:, None] * pts[None, :, 2])                          # (row, P)
+        for which, (v_out, h_out) in enumerate(((v_dir, h_dir), (v_img, h_img))):
+            ph = horiz * (up if which == 0 else np.conj(up))[:, None, :]
+            nxyz = (ph @ moments[which]).reshape(cp.size, az.size, 3, n_port)
+            nx, ny, nz = nxyz[:, :, 0, :], nxyz[:, :, 1, :], nxyz[:, :, 2, :]
             # theta-hat = (sin psi cos az, sin psi sin az, -cos psi); phi-hat = (-sin az, cos az, 0)
-            v_out[:, row, :] = (sp * (ca[:, None] * nx + sa[:, None] * ny) - cp * nz).T
-            h_out[:, row, :] = (-sa[:, None] * nx + ca[:, None] * ny).T
+            v = sp[:, None, None] * (ca[None, :, None] * nx + sa[None, :, None] * ny) - cp[:, None, None] * nz
+            h = -sa[None, :, None] * nx + ca[None, :, None] * ny
+            v_out[:, r0:r0 + cp.size, :] = v.transpose(2, 0, 1)
+            h_out[:, r0:r0 + cp.size, :] = h.transpose(2, 0, 1)
     return v_dir, v_img, h_dir, h_img
 
 
@@ -690,15 +699,24 @@ def _ground_field(sol: ElevatedSolution, points: np.ndarray, k: float, spread_m:
     u_lo = np.arcsinh(-s0 / rho)
     u_hi = np.arcsinh((lq[None, :] - s0) / rho)
     half = 0.5 * (u_hi - u_lo)
-    u = 0.5 * (u_hi + u_lo)[..., None] + half[..., None] * _GI_T
-    s = s0[..., None] + rho[..., None] * np.sinh(u)
-    r = rho[..., None] * np.cosh(u)
-    frac = s / lq[None, :, None]
-    i_s = cur[None, :, 0, None] * (1.0 - frac) + cur[None, :, 1, None] * frac
-    # Biot-Savart with retardation: dH = I ds (t x R) (1 + jkR) e^{-jkR} / (4 pi R^3);
-    # t x R is constant along the segment, ds / R^3 = du / (rho^2 cosh^2 u)
-    kern = i_s * (1.0 + 1j * k * r) * np.exp(-1j * k * r) / (rho[..., None] ** 2 * np.cosh(u) ** 2)
-    integral = np.sum(kern * (half[..., None] * _GI_W), axis=-1)           # (n, q)
+    integral = np.empty(half.shape, dtype=complex)
+    # in u = asinh(s / rho) the integrand is smooth: where a segment spans a
+    # small range of u (seen from afar) three points suffice, near it ten
+    wide = half > 0.25
+    for mask, (gt, gw) in ((~wide, (_FAR_S, _FAR_SW)), (wide, (_GI_T, _GI_W))):
+        if not np.any(mask):
+            continue
+        q_idx = np.nonzero(mask)[1]
+        h_m, r_m, s_m = half[mask], rho[mask], s0[mask]
+        u = (0.5 * (u_hi + u_lo))[mask][:, None] + h_m[:, None] * gt
+        s_pts = s_m[:, None] + r_m[:, None] * np.sinh(u)
+        r = r_m[:, None] * np.cosh(u)
+        frac = s_pts / lq[q_idx][:, None]
+        i_s = cur[q_idx, 0][:, None] * (1.0 - frac) + cur[q_idx, 1][:, None] * frac
+        # Biot-Savart with retardation: dH = I ds (t x R) (1 + jkR) e^{-jkR} / (4 pi R^3);
+        # t x R is constant along the segment, ds / R^3 = du / (rho^2 cosh^2 u)
+        kern = i_s * (1.0 + 1j * k * r) * np.exp(-1j * k * r) / (r_m[:, None] ** 2 * np.cosh(u) ** 2)
+        integral[mask] = np.sum(kern * (h_m[:, None] * gw), axis=-1)
     cross = np.cross(uq[None, :, :], rel)                                   # (n, q, 3)
     h = np.einsum("nq,nqc->nc", integral, cross) / (4.0 * math.pi)
     h[:, 2] = 0.0

@@ -68,6 +68,9 @@ def ground_line(summary: dict) -> str:
                        for o in options)
     text = (f"Ground: {summary['ground']}; loss per base {how}, referred to the base current, on "
             f"{', '.join(bands)}: {values} ohm")
+    if r is not None and r.get("height_m") is not None:
+        text += ("; the elevated radials are copper wires in the element model, so they set the base "
+                 "impedances, the coupling and the patterns")
     for f in summary["foreground"]:
         text += (f"; foreground {f['ground']} from {f['from_m']:g} m toward "
                  f"{f['bearing_deg'][0]:g}-{f['bearing_deg'][1]:g} deg")
