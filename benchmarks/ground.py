@@ -20,7 +20,7 @@ import time
 from dataclasses import replace
 from pathlib import Path
 
-from lobeplan.antenna import mom, pattern, radials
+from lobeplan.antenna import foreground, mom, pattern, radials
 from lobeplan.antenna.model import GROUND_CLASSES, ForegroundSector
 from lobeplan.antenna.radial_table import radial_table
 from lobeplan.plan.planner import make_plan, needs_for_site
@@ -75,6 +75,7 @@ def _clear_caches() -> None:
     mom._solve_cached.cache_clear()
     radials._radial_loss.cache_clear()
     pattern._vertical_kernel.cache_clear()
+    foreground._masks.cache_clear()  # the masks are part of the foreground's cost
 
 
 def main() -> None:
