@@ -201,9 +201,10 @@ def bearing_share(height_m: float, wavelength_m: float, elevation_deg, from_m: f
     The cumulative distribution, over bearing from the array's centre, of the
     part of the first Fresnel zone (:func:`fresnel_ellipse_m`) that lies
     forward (x > 0) and beyond ``from_m`` (x >= from_m), divided by the whole
-    forward area: from 0 at -90 deg to :func:`share_beyond` at 90. The ellipse is symmetric about the ray, so
-    clockwise and anticlockwise are alike. At elevation 0 the zone is a line
-    along the ray: a step, one half at offset 0.
+    forward area: from 0 at -90 deg to :func:`share_beyond` at 90. The
+    ellipse is symmetric about the ray, so clockwise and anticlockwise are
+    alike. At elevation 0 the zone is a line along the ray: a step, one half
+    at offset 0.
 
     Parameters
     ----------
