@@ -25,7 +25,7 @@ import time
 from dataclasses import replace
 from pathlib import Path
 
-from lobeplan.antenna import elevated, mom, pattern, radials
+from lobeplan.antenna import elevated, foreground, mom, pattern, radials
 from lobeplan.antenna.model import GROUND_CLASSES, ForegroundSector, Radials
 from lobeplan.antenna.radial_table import radial_table
 from lobeplan.plan.planner import make_plan, needs_for_site
@@ -83,6 +83,7 @@ def _clear_caches() -> None:
     pattern._grid_vectors.cache_clear()
     for f in (elevated._solve_array, elevated.elevated_mesh, elevated.elevated_loss_ohm, elevated.solve_elevated):
         f.cache_clear()
+    foreground._masks.cache_clear()  # the masks are part of the foreground's cost
 
 
 def main() -> None:
