@@ -287,6 +287,8 @@ def _masks(spec: ArraySpec, freq_hz: float) -> np.ndarray:
     masks[0] = 1.0
     if spec.foreground:
         z = current_centroid_m(spec.height_m, spec.radius_m, freq_hz)
+        if spec.radials is not None and not spec.radials.buried:
+            z += spec.radials.height_m   # the element stands on its raised hub
         for sector in spec.foreground:
             share = sector_share(sector, z, C0_M_S / freq_hz, ELEVATION_DEG)
             masks[classes.index(sector.ground)] += share
