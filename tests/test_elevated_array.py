@@ -155,3 +155,42 @@ def test_the_coarse_rules_for_distant_pairs_change_nothing_that_matters():
         elevated._NEAR_FACTOR = saved
         elevated._solve_array.cache_clear()
     assert np.max(np.abs(quick - fine)) < 1e-4 * np.max(np.abs(fine))
+
+
+def test_a_site_on_elevated_radials_plans_with_the_wire_model(capsys):
+    # end to end: the feed's matrix is the wires' (not the perfect plane's),
+    # the copper loss is shown, the as-built network is cut on that matrix
+    # and the plan's lobes come from the wires' far field
+    import json
+
+    from test_ground_system import _SITE, _goal_site
+
+    from lobeplan.antenna.elevated import ElevatedArray
+    from lobeplan.antenna.pattern import coupled_elements
+    from lobeplan.cli import main
+    from lobeplan.plan.planner import make_plan
+    from lobeplan.site import loads
+
+    elevated = "[array.radials]\ncount = 4\nlength_m = 10.5\nheight_m = 2.5"
+    site = loads(_goal_site(elevated))
+    sol = coupled_elements(site.array, site.array.options[0], site.bands[0].freq_hz)
+    assert isinstance(sol, ElevatedArray) and sol.n_elements == 2
+    plane = solve_elements(site.array.height_m, site.array.radius_m, site.array.options[0].positions_m,
+                           site.bands[0].freq_hz).impedance_ohm
+    assert np.max(np.abs(sol.impedance_ohm - plane)) > 2.0      # the radials change the bases
+    plan = make_plan(site)
+    assert np.all(np.isfinite(plan.options[0].score_db))
+    import tempfile
+    from pathlib import Path
+
+    with tempfile.TemporaryDirectory() as tmp:
+        path = Path(tmp) / "site.toml"
+        path.write_text(_SITE.format(array=elevated))
+        assert main(["feed", str(path), "--json"]) == 0
+        band = json.loads(capsys.readouterr().out)["bands"][0]
+        got = np.array([[complex(*z) for z in row] for row in band["impedance_matrix_ohm"]])
+        assert np.allclose(got, sol.impedance_ohm, atol=0.01)
+        assert 0.0 < band["elevated_copper_loss_ohm"] < 1.0
+        assert main(["feed", str(path)]) == 0
+        text = capsys.readouterr().out
+        assert "solved together as copper wires" in text and "copper (" in text
