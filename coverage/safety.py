@@ -22,6 +22,8 @@ CAUTIONS = (
     "near a vertical the far-field estimate does not hold.",
     "Power lines: keep verticals, radials and guys far enough away that nothing can touch a line "
     "if it falls.",
+    "Radials: the tips of elevated radials carry a high RF voltage, so insulate them and keep them out "
+    "of reach; have buried services located before burying radials.",
     "Lightning: bond and ground the array, switch box and feed lines as your electrical code requires.",
     "These are planning estimates from published models; local codes, permits and licensed "
     "practice govern.",
