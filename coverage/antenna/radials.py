@@ -37,6 +37,49 @@ ground, through the Fresnel reflection coefficient of the pattern (counting it
 here too would count it twice). Radials longer than half a wavelength
 therefore gain nothing in this model.
 
+How much rides on that limit (measured; quarter-wave element of radius
+1e-3 wavelength, average soil, 2 mm wire 0.1 m down; ohm at 3.5 / 14 MHz
+with the integral stopped at 0.5, 1 and 2 wavelengths):
+
+=================  ======================  ======================
+system             3.5 MHz                 14 MHz
+=================  ======================  ======================
+bare soil          63.2 / 71.1 / 79.0      98.9 / 111.2 / 123.5
+120 x 0.3 wl       6.5 / 14.4 / 22.3       9.7 / 22.0 / 34.3
+60 x 0.6 wl        5.2 / 12.2 / 20.1       5.6 / 16.5 / 28.8
+=================  ======================  ======================
+
+Each doubling adds Re(Z_g) ln 2 / 2 pi of bare soil (7.9 and 12.3 ohm): the
+perfect-plane field falls as 1/rho and the integral has no end of its own.
+The split is checked against the energy balance over bare soil: the
+pattern's sky integral over average soil is 35 % (3.5 MHz) and 29 % (14 MHz)
+of the perfect-ground power, a deficit of 28.0 and 30.9 ohm referred to the
+base current; the soil's whole absorption, with the field bare soil really
+has (Norton's ground-wave attenuation), is 78.6 and 96.2 ohm. Near zone plus
+far-field deficit counts 1.16 and 1.35 times that: the split errs toward
+loss, more on the higher bands, and never counts less than the soil takes.
+
+Why radials beyond half a wavelength are not credited. Two published ways
+were measured. (1) The difference of the screen's and the bare soil's
+absorption beyond half a wavelength (the same power integral, with the
+perfect-plane field, or Norton's attenuated one): 60 x 0.6 wl would save 0.6
+to 0.8 ohm at 3.5 MHz and 0.7 to 1.5 ohm at 14 MHz, but 120 x 1 wl saves 3.4
+to 4.5 and 3.9 to 8.3 ohm, more than its whole near-zone loss (2.0 and 1.8
+ohm): the base resistance would go negative. What a screen saves out there
+is sky power (a smaller reflection deficit at low angles), not a base
+resistance, and belongs in the pattern (Wait's far-field compensation
+theorem for a ground screen), which this module does not set. (2) Monteath's
+impedance form, Re (1/I_0^2) int Z_s H_phi^2 dS, converges with no limit
+(bare soil 55.7 and 79.6 ohm, settled by one wavelength), but with the
+field's phase the ring from about 0.28 to 0.57 wavelength counts negative:
+longer radials would raise the loss (113 radials on average soil at 3 MHz:
+0.5 ohm at 0.25 wl, 2.0 ohm at 0.41 wl) and dense quarter-wave screens on
+poor soil give less than nothing. It is the base-impedance change, the
+screen's change of radiation included, and again needs a pattern that sees
+the screen. Real radials longer than half a wavelength do help, mostly at
+low angles; the model does not show it, and the radial table stops at 0.3
+wavelength.
+
 Neighbours (common practice): radials of neighbouring elements are cut where
 they meet and bonded along the midline. So at each point of the plane the
 screen is that of the nearest element (its Voronoi cell), with that
@@ -79,6 +122,12 @@ G. D. Monteath, "Application of the compensation theorem to certain
 radiation and propagation problems", Proc. IEE 98 (IV), 1951.
 S. A. Schelkunoff and H. T. Friis, *Antennas: Theory and Practice*, 1952
 (field of a sinusoidal current filament).
+K. A. Norton, "The propagation of radio waves over the surface of the earth
+and in the upper atmosphere", Proc. IRE 24, 1936 and 25, 1937 (ground-wave
+attenuation function, used in the energy check; from memory).
+J. R. Wait, "Effect of the ground screen on the field radiated from a
+monopole", IRE Trans. Antennas Propag. AP-4, 1956 (the screen's effect on the
+far field, not modelled here; from memory).
 G. H. Brown, R. F. Lewis and J. Epstein, "Ground systems as a factor in
 antenna efficiency", Proc. IRE 25, 1937 (the measurements the tests follow).
 """
