@@ -320,7 +320,8 @@ def build(site, args=None) -> dict:
                 "ground_loss_ohm": round(float(np.mean(loss.ohm)), 3),
                 "ground_loss_source": loss.source,
                 "ground_loss_per_element_ohm": [round(float(x), 3) for x in loss.ohm],
-                "ground_loss_copper_ohm": None if loss.copper_ohm is None else round(float(np.mean(loss.copper_ohm)), 4),
+                "ground_loss_copper_ohm": (None if loss.copper_ohm is None
+                                           else round(float(np.mean(loss.copper_ohm)), 4)),
                 "impedance_matrix_ohm": [[pair(z) for z in row] for row in sol.impedance_ohm],
                 "states": [_state_row(spec, option, s, band, power) for s in option.states],
                 "loading_coil": None if option.receive else _loading(spec, band),
@@ -528,8 +529,8 @@ def _table_text(b, rad) -> list[str]:
 def _footnotes(result) -> list[str]:
     notes = ["Ground loss: series resistance at each base standing for the radial system and soil "
              "(\"from the radials\": buried-screen surface impedance in parallel with the soil, integrated "
-             "over the base's field to half a wavelength, the wires' copper included; \"as given\": ground_loss_ohm of the site, "
-             "default 2 ohm).",
+             "over the base's field to half a wavelength, the wires' copper included; \"as given\": "
+             "ground_loss_ohm of the site, default 2 ohm).",
              "Radial table: loss = that resistance per base (cu: the part of it in the radial wires' own "
              "copper, skin effect; the rest is the soil's); eff. = share of the power into the bases not lost "
              "in the ground; gain dB = change of the state's gain toward its beam against the site's own "
