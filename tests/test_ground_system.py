@@ -376,6 +376,16 @@ def test_feed_json_carries_the_source_and_the_radial_table(tmp_path, capsys):
     assert abs(first["element_currents"][1]["amplitude"] - last["element_currents"][1]["amplitude"]) > 0.05
 
 
+def test_ground_summary_carries_the_copper_part():
+    from lobeplan.report.ground import ground_summary
+
+    radials = ground_summary(loads(_SITE.format(array=RADIALS)))
+    total = radials["ground_loss_ohm"]["40 m"]["pair 10.5 m"]
+    assert 0 < radials["ground_loss_copper_ohm"]["40 m"]["pair 10.5 m"] < 0.05 * total   # 2 mm copper: small
+    given = ground_summary(loads(_SITE.format(array="ground_loss_ohm = 7.5\n" + RADIALS)))
+    assert given["ground_loss_copper_ohm"]["40 m"]["pair 10.5 m"] is None
+
+
 def test_table_row_of_the_site_own_system_changes_nothing():
     # the table recomputes the site's own radials when they are one of its
     # rows: a 0 dB change is the check that it compares like with like
