@@ -517,7 +517,7 @@ SHORT_WAVELENGTHS = 0.15   # under this an element is "short": a base coil is th
 def element_caveats(site: "Site") -> tuple[str, ...]:
     """Short elements: the base-loading coil that resonates one, and its loss at a stated Q."""
     from .antenna.feed import COIL_Q, loading_coil
-    from .antenna.mom import solve_elements
+    from .antenna.pattern import element_impedance_ohm
     from .antenna.radials import ground_loss
 
     out = []
@@ -528,7 +528,7 @@ def element_caveats(site: "Site") -> tuple[str, ...]:
         h = a.height_m * b.freq_hz / 299_792_458.0
         if h >= SHORT_WAVELENGTHS:
             continue
-        z = complex(solve_elements(a.height_m, a.radius_m, ((0.0, 0.0),), b.freq_hz).impedance_ohm[0, 0])
+        z = element_impedance_ohm(a, b.freq_hz)
         base_loss = float(ground_loss(a, a.options[0], b.freq_hz).ohm[0])
         coil = loading_coil(z, base_loss, b.freq_hz)
         text = (f"On {b.name} the elements are {h:.2f} wavelength tall (short): each base is about "
@@ -547,7 +547,22 @@ def mesh_caveats(site: "Site") -> tuple[str, ...]:
     from .antenna.mom import MESH_TOLERANCE, converged_mesh
 
     out = []
+    a = site.array
+    elevated = a is not None and a.radials is not None and not a.radials.buried
     for b in site.bands:
+        if elevated:
+            from .antenna.elevated import elevated_mesh
+
+            r = a.radials
+            e = elevated_mesh(a.height_m, a.radius_m, r.height_m, r.count, r.length_m, 0.5e-3 * r.wire_diameter_mm,
+                              b.freq_hz, a.ground)
+            if not e.converged:
+                out.append(f"On {b.name} the base impedance of an element on its elevated radials still moves "
+                           f"{100 * e.change:.1f} % per doubling of the segments at the finest mesh used "
+                           f"({e.per_wavelength:g} per wavelength; wanted under {100 * MESH_TOLERANCE:g} %): the "
+                           "feed gap's capacitance matters here, so the real base insulator's few pF shift the "
+                           "match and the as-built currents.")
+            continue
         m = converged_mesh(site.array.height_m, site.array.radius_m, b.freq_hz)
         if not m.converged:
             out.append(f"On {b.name} the base impedance still moves {100 * m.change:.1f} % per doubling of the "

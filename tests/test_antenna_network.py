@@ -3,7 +3,7 @@ import math
 
 import numpy as np
 import pytest
-from hypothesis import given, settings, strategies as st
+from hypothesis import example, given, settings, strategies as st
 
 from lobeplan.antenna.asbuilt import FB_LOSS_DB, _fb, _front, check_network, cut_tolerance
 from lobeplan.antenna.layout import layout_positions_m
@@ -221,9 +221,14 @@ def test_match_stress_follows_the_power():
 
 @settings(max_examples=8, deadline=None)
 @given(st.lists(st.floats(-180.0, 180.0), min_size=3, max_size=3), st.integers(0, 7))
+@example(phases=[0.0, 2.0, 0.0], k=1)
 def test_any_square_state_and_its_image_share_one_design(phases, k):
     # property: whatever the wanted phases, a symmetry of the square carries
-    # the state's design onto its image's (the geometry is the same plan)
+    # the state's design onto its image's (the geometry is the same plan).
+    # A state that its own symmetry maps onto itself (the pinned example: a
+    # mirror through elements 1 and 3) is one design, and the lines of the
+    # two mirrored elements agree only to the line solver's convergence
+    # (1.1e-9 m found): a micrometre is the tolerance, far below any cut.
     pos = layout_positions_m("square", 10.5)
     w = _w([0.0, *phases])
     perm = layout_symmetries(pos, np.mean(pos, axis=0))[k]
@@ -233,7 +238,7 @@ def test_any_square_state_and_its_image_share_one_design(phases, k):
     b = design_network(_z(pos), CABLE, F0, image, pos)
     assert a.form == b.form
     for i in range(4):
-        assert b.branches[perm[i]].line_m == pytest.approx(a.branches[i].line_m, abs=1e-9)
+        assert b.branches[perm[i]].line_m == pytest.approx(a.branches[i].line_m, abs=1e-6)
 
 
 def test_cut_tolerance_watches_the_rear_null_of_a_split_beam():

@@ -1,7 +1,9 @@
-"""Real ground in the far field: the Fresnel coefficient for vertical polarization.
+"""Real ground in the far field: the Fresnel coefficients for both polarizations.
 
-Near the array the radial system is taken as a perfect plane (the moment
-method uses images) plus a series loss resistance at each base; far away the
+Near the array a buried radial system is taken as a perfect plane (the moment
+method uses images) plus a series loss resistance at each base; elevated
+radials are wires over the soil (:mod:`.elevated`), whose horizontal currents
+also radiate horizontal polarization. Far away the
 ground is a homogeneous half space that reflects the downward ray with the
 plane-wave Fresnel coefficient. The surface (ground) wave is not modelled: it
 carries no power at the elevations that matter for sky-wave work.
@@ -19,7 +21,7 @@ import numpy as np
 
 from .model import Ground
 
-__all__ = ["complex_permittivity", "reflection_vertical"]
+__all__ = ["complex_permittivity", "reflection_vertical", "reflection_horizontal"]
 
 _C0_M_S = 299_792_458.0
 
@@ -70,3 +72,33 @@ def reflection_vertical(ground: Ground, freq_hz: float, elevation_deg) -> np.nda
     s = np.sin(psi)
     root = np.sqrt(e - np.cos(psi) ** 2 + 0j)
     return (e * s - root) / (e * s + root)
+
+
+def reflection_horizontal(ground: Ground, freq_hz: float, elevation_deg) -> np.ndarray:
+    """Plane-wave reflection coefficient for horizontal polarization (E parallel to the ground).
+
+    Rh = (sin psi - sqrt(e - cos^2 psi)) / (sin psi + sqrt(e - cos^2 psi));
+    a perfect ground gives -1 everywhere (the tangential field reverses).
+    Only the horizontal currents of elevated radials radiate this way.
+
+    Parameters
+    ----------
+    ground : Ground
+    freq_hz : float
+    elevation_deg : array_like, shape (n,)
+
+    Returns
+    -------
+    ndarray of complex, shape (n,)
+
+    References
+    ----------
+    Kraus, *Antennas*, 2nd ed., sec. 12-2 (horizontal polarization).
+    """
+    psi = np.radians(np.asarray(elevation_deg, dtype=float))
+    if ground.perfect:
+        return -np.ones(psi.shape, dtype=complex)
+    e = complex_permittivity(ground, freq_hz)
+    s = np.sin(psi)
+    root = np.sqrt(e - np.cos(psi) ** 2 + 0j)
+    return (s - root) / (s + root)

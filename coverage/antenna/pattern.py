@@ -4,7 +4,10 @@ The moment method gives the current along every monopole; each piecewise-
 sinusoidal current triangle is integrated in closed form into the far field,
 once as the direct ray and once as the ray reflected by the real ground with
 the Fresnel coefficient for vertical polarization. The horizontal array
-factor places each element at its (along, across) position. Gain is
+factor places each element at its (along, across) position. With elevated
+radials the solution is the wires of :mod:`lobeplan.antenna.elevated`
+instead, and their far field (both polarizations, each with its own Fresnel
+coefficient) replaces the vertical factor. Gain is
 4 pi U / P_in, where P_in is the power into the bases (forced currents) or
 into the junction (fed states), so ground loss and line loss lower it.
 
@@ -28,7 +31,8 @@ import numpy as np
 
 from ..grid import AZIMUTH_DEG, ELEVATION_DEG
 from .feed import Drive, drive_fed, drive_forced
-from .ground import reflection_vertical
+from .elevated import ElevatedArray, radiation_vectors, solve_elevated_array
+from .ground import reflection_horizontal, reflection_vertical
 from .model import ArrayOption, ArraySpec, Ground, State
 from .mom import C0_M_S, ETA0_OHM, CoupledElements, solve_elements
 from .network import Network, design_network, network_drive
@@ -42,6 +46,8 @@ __all__ = [
     "vertical_gain_dbi",
     "pattern_figures",
     "coupled_elements",
+    "element_solution",
+    "element_impedance_ohm",
     "state_currents",
     "state_drive",
     "gain_from_currents_dbi",
@@ -89,7 +95,8 @@ class ArrayResult:
     ground_loss_w : float
         Power lost in the base (radial) resistances per watt of input.
     impedance_matrix_ohm : ndarray of complex, shape (n_el, n_el)
-        Coupled base impedances over the perfect plane, without ground loss.
+        Coupled base impedances without the series ground loss: over the
+        perfect plane, or with elevated radials the wires over the soil.
     kind : {"forced", "as-built", "fed"}
         Forced currents held on this band; the currents the state's network
         (designed on ``design_band``) delivers here; or the ``line_m`` lines.
@@ -155,9 +162,30 @@ def state_network(spec: ArraySpec, option: ArrayOption, state: State) -> Network
                           option.junction_point_m, spec.line_slack_m)
 
 
-def coupled_elements(spec: ArraySpec, option: ArrayOption, freq_hz: float) -> CoupledElements:
-    """The moment-method solution for an option on one frequency (cached)."""
-    return solve_elements(spec.height_m, spec.radius_m, option.positions_m, freq_hz)
+def element_solution(spec: ArraySpec, positions_m, freq_hz: float) -> CoupledElements | ElevatedArray:
+    """The moment-method solution of the array's elements at ``positions_m`` on one frequency (cached).
+
+    Over buried radials, or a given loss, the monopoles stand on a perfect
+    plane (:func:`lobeplan.antenna.mom.solve_elements`); with elevated
+    radials every element, its hub and its radials are wires in one solution
+    over the soil (:func:`lobeplan.antenna.elevated.solve_elevated_array`), so
+    the radials set the base impedances, the coupling and the far field.
+    """
+    r = spec.radials
+    if r is not None and not r.buried:
+        return solve_elevated_array(spec.height_m, spec.radius_m, r.height_m, r.count, r.length_m,
+                                    0.5e-3 * r.wire_diameter_mm, positions_m, freq_hz, spec.ground)
+    return solve_elements(spec.height_m, spec.radius_m, positions_m, freq_hz)
+
+
+def coupled_elements(spec: ArraySpec, option: ArrayOption, freq_hz: float) -> CoupledElements | ElevatedArray:
+    """The moment-method solution for an option on one frequency (cached); see :func:`element_solution`."""
+    return element_solution(spec, option.positions_m, freq_hz)
+
+
+def element_impedance_ohm(spec: ArraySpec, freq_hz: float) -> complex:
+    """Base impedance of one element alone on its ground system, without the series ground loss."""
+    return complex(element_solution(spec, ((0.0, 0.0),), freq_hz).impedance_ohm[0, 0])
 
 
 def state_currents(state: State, n_elements: int) -> np.ndarray:
@@ -238,7 +266,8 @@ def gain_from_currents_dbi(sol: CoupledElements, ground: Ground, base_current_a:
     ----------
     sol : CoupledElements
     ground : Ground
-        Far-field ground (the near field is always the perfect plane).
+        Far-field ground (the near field is the perfect plane, or with
+        elevated radials the soil as the wires' solution sees it).
     base_current_a : ndarray of complex, shape (n_el,)
     input_power_w : float
 
@@ -250,26 +279,63 @@ def gain_from_currents_dbi(sol: CoupledElements, ground: Ground, base_current_a:
     return gains_from_currents_dbi(sol, (ground,), base_current_a, input_power_w)[0]
 
 
-def gains_from_currents_dbi(sol: CoupledElements, grounds, base_current_a: np.ndarray,
+def gains_from_currents_dbi(sol: CoupledElements | ElevatedArray, grounds, base_current_a: np.ndarray,
                             input_power_w: float) -> np.ndarray:
     """:func:`gain_from_currents_dbi` for several far-field grounds at once.
 
     The array factor is shared; only the vertical factor (the Fresnel
     reflection) differs per ground. Returns ndarray, shape (n_ground, 91, 360).
+    With elevated radials the wires' radiation vectors are shared and each
+    ground reflects their vertical part by R_v and their horizontal part by
+    R_h (:func:`_wire_fields`).
     """
     k = 2.0 * math.pi * sol.freq_hz / C0_M_S
-    nodes = sol.currents_on_wires(base_current_a)                       # (n_el, n_node)
-    vert = np.stack([nodes @ _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size, g).T
-                     for g in grounds])                                 # (n_ground, n_el, 91)
-    phase = _array_phase(sol.freq_hz, tuple(map(tuple, sol.positions_m)))
-    field = np.einsum("gep,epa->gpa", vert, phase)
-    gain = ETA0_OHM * k * k * (field.real ** 2 + field.imag ** 2) / (8.0 * math.pi * input_power_w)
+    if isinstance(sol, ElevatedArray):
+        power = _wire_power(sol, grounds, base_current_a, _grid_vectors(sol), ELEVATION_DEG)
+    else:
+        nodes = sol.currents_on_wires(base_current_a)                       # (n_el, n_node)
+        vert = np.stack([nodes @ _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size, g).T
+                         for g in grounds])                                 # (n_ground, n_el, 91)
+        phase = _array_phase(sol.freq_hz, tuple(map(tuple, sol.positions_m)))
+        field = np.einsum("gep,epa->gpa", vert, phase)
+        power = field.real ** 2 + field.imag ** 2
+    gain = ETA0_OHM * k * k * power / (8.0 * math.pi * input_power_w)
     floor = 10.0 ** (GAIN_FLOOR_DBI / 10.0)
     return 10.0 * np.log10(np.maximum(gain, floor))
 
 
-def gain_toward_dbi(sol: CoupledElements, ground: Ground, base_current_a: np.ndarray, input_power_w: float,
-                    elevation_index: int, azimuth_deg) -> np.ndarray:
+@functools.lru_cache(maxsize=16)
+def _grid_vectors(sol: ElevatedArray) -> tuple[np.ndarray, ...]:
+    """Radiation vectors of every port over the whole grid (cached per solution)."""
+    out = radiation_vectors(sol, ELEVATION_DEG, AZIMUTH_DEG)
+    for a in out:
+        a.flags.writeable = False
+    return out
+
+
+def _wire_power(sol: ElevatedArray, grounds, base_current_a, vectors, elevation_deg) -> np.ndarray:
+    """|N_theta|^2 + |N_phi|^2 of the wires with each ground's reflection, shape (n_ground, n_el_dir, n_az).
+
+    ``vectors`` are :func:`lobeplan.antenna.elevated.radiation_vectors` at
+    the elevations ``elevation_deg``.
+
+    Direct plus image, the image's vertical part times R_v and its
+    horizontal part times -R_h (see :func:`lobeplan.antenna.elevated.radiation_vectors`).
+    """
+    i = np.asarray(base_current_a, dtype=complex)
+    vd, vi, hd, hi = (np.tensordot(i, v, axes=1) for v in vectors)          # (n_el_dir, n_az) each
+    out = []
+    for g in grounds:
+        rv = reflection_vertical(g, sol.freq_hz, elevation_deg)[:, None]
+        rh = reflection_horizontal(g, sol.freq_hz, elevation_deg)[:, None]
+        ev = vd + rv * vi
+        eh = hd - rh * hi
+        out.append(ev.real ** 2 + ev.imag ** 2 + eh.real ** 2 + eh.imag ** 2)
+    return np.stack(out)
+
+
+def gain_toward_dbi(sol: CoupledElements | ElevatedArray, ground: Ground, base_current_a: np.ndarray,
+                    input_power_w: float, elevation_index: int, azimuth_deg) -> np.ndarray:
     """Gain at one elevation row toward a few azimuths (array frame), dBi.
 
     The same far field as :func:`gain_from_currents_dbi`, evaluated only where
@@ -280,14 +346,20 @@ def gain_toward_dbi(sol: CoupledElements, ground: Ground, base_current_a: np.nda
     ndarray, shape (n_az,), floored at -60 dBi.
     """
     k = 2.0 * math.pi * sol.freq_hz / C0_M_S
-    nodes = sol.currents_on_wires(base_current_a)
-    kern = _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size, ground)[elevation_index]
-    vert = nodes @ kern                                                   # (n_el,)
-    az = np.radians(np.atleast_1d(np.asarray(azimuth_deg, dtype=float)))
-    pos = sol.positions_m
-    proj = pos[:, 0, None] * np.cos(az)[None, :] + pos[:, 1, None] * np.sin(az)[None, :]
-    field = (vert[:, None] * np.exp(1j * k * _COS_EL[elevation_index] * proj)).sum(axis=0)
-    gain = ETA0_OHM * k * k * np.abs(field) ** 2 / (8.0 * math.pi * input_power_w)
+    if isinstance(sol, ElevatedArray):
+        el = ELEVATION_DEG[elevation_index:elevation_index + 1]
+        vec = radiation_vectors(sol, el, np.atleast_1d(np.asarray(azimuth_deg, dtype=float)))
+        power = _wire_power(sol, (ground,), base_current_a, vec, el)[0, 0]
+    else:
+        nodes = sol.currents_on_wires(base_current_a)
+        kern = _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size, ground)[elevation_index]
+        vert = nodes @ kern                                                   # (n_el,)
+        az = np.radians(np.atleast_1d(np.asarray(azimuth_deg, dtype=float)))
+        pos = sol.positions_m
+        proj = pos[:, 0, None] * np.cos(az)[None, :] + pos[:, 1, None] * np.sin(az)[None, :]
+        field = (vert[:, None] * np.exp(1j * k * _COS_EL[elevation_index] * proj)).sum(axis=0)
+        power = np.abs(field) ** 2
+    gain = ETA0_OHM * k * k * power / (8.0 * math.pi * input_power_w)
     return 10.0 * np.log10(np.maximum(gain, 10.0 ** (GAIN_FLOOR_DBI / 10.0)))
 
 
@@ -342,19 +414,24 @@ def vertical_gain_dbi(spec: ArraySpec, freq_hz: float, far_ground: Ground | None
 
     Omnidirectional; ground loss in series at its base as for the array (its
     own radials, no neighbours). ``far_ground`` replaces ``spec.ground`` in
-    the far-field reflection only (a foreground class).
+    the far-field reflection only (a foreground class). With elevated
+    radials the element's few radials make the pattern slightly unround: the
+    power mean over azimuth is taken.
 
     Returns
     -------
     ndarray, shape (91,)
         dBi at elevations 0..90 deg, floored at -60 dBi.
     """
-    sol = solve_elements(spec.height_m, spec.radius_m, ((0.0, 0.0),), freq_hz)
+    sol = element_solution(spec, ((0.0, 0.0),), freq_hz)
     r_in = float(sol.impedance_ohm[0, 0].real) + float(ground_loss(spec, None, freq_hz).ohm[0])
     i = np.array([math.sqrt(2.0 / r_in)], dtype=complex)  # 1 W input
+    g = spec.ground if far_ground is None else far_ground
+    if isinstance(sol, ElevatedArray):
+        lin = 10.0 ** (gains_from_currents_dbi(sol, (g,), i, 1.0)[0] / 10.0)
+        return np.maximum(10.0 * np.log10(np.mean(lin, axis=1)), GAIN_FLOOR_DBI)
     k = 2.0 * math.pi * freq_hz / C0_M_S
-    kern = _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size,
-                            spec.ground if far_ground is None else far_ground)
+    kern = _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size, g)
     vert = sol.currents_on_wires(i)[0] @ kern.T
     gain = ETA0_OHM * k * k * np.abs(vert) ** 2 / (8.0 * math.pi)
     return 10.0 * np.log10(np.maximum(gain, 10.0 ** (GAIN_FLOOR_DBI / 10.0)))

@@ -7,8 +7,8 @@ import numpy as np
 
 from ..antenna.feed import (design_l_network, drive_fed, l_network_input_ohm,
                             quarter_wave_forcing, swr)
-from ..antenna.pattern import (array_pattern, base_impedance_ohm, coupled_elements, lobe_bearings_deg,
-                               state_currents, state_drive)
+from ..antenna.pattern import (array_pattern, base_impedance_ohm, coupled_elements, element_impedance_ohm,
+                               lobe_bearings_deg, state_currents, state_drive)
 from ..antenna.radial_table import radial_table
 from ..antenna.radials import ground_loss
 from ..errors import UsageError
@@ -145,9 +145,7 @@ def _loading(spec, band):
     h = spec.height_m * band.freq_hz / 299_792_458.0
     if h >= SHORT_WAVELENGTHS:
         return None
-    from ..antenna.mom import solve_elements
-
-    z = complex(solve_elements(spec.height_m, spec.radius_m, ((0.0, 0.0),), band.freq_hz).impedance_ohm[0, 0])
+    z = element_impedance_ohm(spec, band.freq_hz)
     coil = loading_coil(z, float(ground_loss(spec, spec.options[0], band.freq_hz).ohm[0]), band.freq_hz)
     if coil is None:
         return None
@@ -322,6 +320,7 @@ def build(site, args=None) -> dict:
                 "ground_loss_per_element_ohm": [round(float(x), 3) for x in loss.ohm],
                 "ground_loss_copper_ohm": (None if loss.copper_ohm is None
                                            else round(float(np.mean(loss.copper_ohm)), 4)),
+                "elevated_copper_loss_ohm": _elevated_copper(spec, band.freq_hz),
                 "impedance_matrix_ohm": [[pair(z) for z in row] for row in sol.impedance_ohm],
                 "states": [_state_row(spec, option, s, band, power) for s in option.states],
                 "loading_coil": None if option.receive else _loading(spec, band),
@@ -329,6 +328,18 @@ def build(site, args=None) -> dict:
                 **radial_table_json(radial_table(spec, option, band.freq_hz)),
             })
     return {"bands": out, "radials": radials_json(spec)}
+
+
+def _elevated_copper(spec, freq_hz):
+    """Copper loss of one element's elevated radials referred to its base, ohm (None: not elevated)."""
+    r = spec.radials
+    if r is None or r.buried:
+        return None
+    from ..antenna.elevated import copper_loss_ohm, solve_elevated_array
+
+    one = solve_elevated_array(spec.height_m, spec.radius_m, r.height_m, r.count, r.length_m,
+                               0.5e-3 * r.wire_diameter_mm, ((0.0, 0.0),), freq_hz, spec.ground)
+    return round(copper_loss_ohm(one), 3)
 
 
 def write_files(site, args, result, out_dir) -> list:
@@ -450,8 +461,10 @@ def format_text(result: dict) -> str:
         loss = (f"{b['ground_loss_ohm']:.2f}" if len(set(per)) == 1
                 else "/".join(f"{x:.2f}" for x in per))
         source = "from the radials" if b["ground_loss_source"] == "radials" else "as given"
+        copper = b.get("elevated_copper_loss_ohm")
+        copper = "" if copper is None else f"; the elevated radials' copper ({copper:.2f} ohm) is in it"
         lines.append(f"== {b['band']} ({b['freq_mhz']:g} MHz{sp}); ground loss {loss} ohm per base "
-                     f"({source}), not in the matrix")
+                     f"({source}), not in the matrix{copper}")
         lines.append("coupled base impedances (ohm):")
         for row in b["impedance_matrix_ohm"]:
             lines.append("  " + "  ".join(f"{_z(p):>16}" for p in row))
@@ -541,8 +554,10 @@ def _footnotes(result) -> list[str]:
         notes.append("Neighbouring elements: radials cut where they meet and bonded along the midline "
                      "(each base's loss from its own field; cross terms between elements left out).")
     elif rad is not None:
-        notes.append(f"Elevated radials ({rad['count']} x {rad['length_m']:g} m at {rad['height_m']:g} m): each "
-                     "element and its own radials are solved as wires, the soil below by its reflection, and the "
-                     "soil's loss taken under them; the base impedances and the coupling between elements stay those of the "
-                     "verticals over the perfect plane, and neighbours' radials are not in each other's solution.")
+        notes.append(f"Elevated radials ({rad['count']} x {rad['length_m']:g} m at {rad['height_m']:g} m): every "
+                     "element, its hub and its radials are solved together as copper wires over the soil (seen by "
+                     "its reflection), so the radials set the base impedances, the coupling and the patterns; "
+                     "radials that would cross a midline between two elements stop just short of it, unbonded. "
+                     "The soil's loss under them is each element's with its own radials alone (cross terms "
+                     "left out), in series at its base; the copper loss is in the matrix.")
     return notes
