@@ -48,7 +48,8 @@ class FedChange:
 class RadialRow:
     """One radial system in the table.
 
-    ``loss_ohm`` is per base (mean over the elements); ``efficiency`` the share
+    ``loss_ohm`` is per base (mean over the elements), ``copper_loss_ohm`` the
+    part of it in the radial wires' copper (the rest is the soil's); ``efficiency`` the share
     of the power into the bases that is not lost in the ground (reference
     state); ``gain_change_db`` its gain toward the beam against the site's own
     ground system.
@@ -61,6 +62,7 @@ class RadialRow:
     efficiency: float
     gain_change_db: float
     fed: tuple[FedChange, ...]
+    copper_loss_ohm: float = 0.0
 
 
 @dataclass(frozen=True, slots=True)
@@ -76,6 +78,7 @@ class RadialTable:
     site_efficiency: float
     site_fed: tuple[FedChange, ...]
     rows: tuple[RadialRow, ...]
+    site_copper_loss_ohm: float | None = None   # None: the site's loss is given, or elevated radials
 
 
 def reference_state(option: ArrayOption):
@@ -137,10 +140,12 @@ def radial_table(spec: ArraySpec, option: ArrayOption, freq_hz: float,
             length_m = float(frac) * wavelength_m
             alt = replace(spec, ground_loss_ohm=None, radials=Radials(int(n), length_m, depth, None, wire))
             res = array_pattern(alt, option, state, freq_hz, designed_on=spec)
-            rows.append(RadialRow(int(n), float(frac), length_m,
-                                  float(np.mean(ground_loss(alt, option, freq_hz).ohm)), _efficiency(res),
+            loss = ground_loss(alt, option, freq_hz)
+            rows.append(RadialRow(int(n), float(frac), length_m, float(np.mean(loss.ohm)), _efficiency(res),
                                   float(res.gain_dbi[el, az] - base.gain_dbi[el, az]),
-                                  _fed(alt, option, freq_hz, spec, res)))
+                                  _fed(alt, option, freq_hz, spec, res), float(np.mean(loss.copper_ohm))))
+    site_loss = ground_loss(spec, option, freq_hz)
     return RadialTable(float(freq_hz), option.name, state.name, float(depth), float(wire), float(az), float(el),
-                       float(np.mean(ground_loss(spec, option, freq_hz).ohm)), _efficiency(base),
-                       _fed(spec, option, freq_hz, None, base), tuple(rows))
+                       float(np.mean(site_loss.ohm)), _efficiency(base),
+                       _fed(spec, option, freq_hz, None, base), tuple(rows),
+                       None if site_loss.copper_ohm is None else float(np.mean(site_loss.copper_ohm)))

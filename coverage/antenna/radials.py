@@ -19,8 +19,11 @@ familiar |H_phi| = I_0 / (2 pi rho).
 Surface impedance:
 
 * a radial wire screen with N wires of radius a at radius rho, spacing
-  d = 2 pi rho / N, has the grid impedance Z_w = j omega mu0 (d / 2 pi)
-  ln(d / 2 pi a) (Wait's wire-grid formula; zero where the wires touch);
+  d = 2 pi rho / N, has the grid impedance Z_w = Z_i d + j omega mu0
+  (d / 2 pi) ln(d / 2 pi a) (Wait's wire-grid formula with lossy wires; the
+  log term zero where the wires touch), Z_i = (1 + j) R' the internal
+  impedance per metre of the copper wire in the skin regime, R' from
+  :func:`lobeplan.antenna.conductor.wire_resistance_ohm_per_m`;
 * the soil at grazing incidence has Z_g = eta0 sqrt(e - 1) / e, e the
   complex relative permittivity eps_r - j 60 sigma lambda;
 * the screen is in parallel with the soil below it (Wait and Pope); a screen
@@ -34,19 +37,84 @@ ground, through the Fresnel reflection coefficient of the pattern (counting it
 here too would count it twice). Radials longer than half a wavelength
 therefore gain nothing in this model.
 
+How much rides on that limit (measured; quarter-wave element of radius
+1e-3 wavelength, average soil, 2 mm wire 0.1 m down; ohm at 3.5 / 14 MHz
+with the integral stopped at 0.5, 1 and 2 wavelengths):
+
+=================  ======================  ======================
+system             3.5 MHz                 14 MHz
+=================  ======================  ======================
+bare soil          63.2 / 71.1 / 79.0      98.9 / 111.2 / 123.5
+120 x 0.3 wl       6.5 / 14.4 / 22.3       9.7 / 22.0 / 34.3
+60 x 0.6 wl        5.2 / 12.2 / 20.1       5.6 / 16.5 / 28.8
+=================  ======================  ======================
+
+Each doubling adds Re(Z_g) ln 2 / 2 pi of bare soil (7.9 and 12.3 ohm): the
+perfect-plane field falls as 1/rho and the integral has no end of its own.
+The split is checked against the energy balance over bare soil: the
+pattern's sky integral over average soil is 35 % (3.5 MHz) and 29 % (14 MHz)
+of the perfect-ground power, a deficit of 28.0 and 30.9 ohm referred to the
+base current; the soil's whole absorption, with the field bare soil really
+has (Norton's ground-wave attenuation), is 78.6 and 96.2 ohm. Near zone plus
+far-field deficit counts 1.16 and 1.35 times that: the split errs toward
+loss, more on the higher bands, and never counts less than the soil takes.
+
+Why radials beyond half a wavelength are not credited. Two published ways
+were measured. (1) The difference of the screen's and the bare soil's
+absorption beyond half a wavelength (the same power integral, with the
+perfect-plane field, or Norton's attenuated one): 60 x 0.6 wl would save 0.6
+to 0.8 ohm at 3.5 MHz and 0.7 to 1.5 ohm at 14 MHz, but 120 x 1 wl saves 3.4
+to 4.5 and 3.9 to 8.3 ohm, more than its whole near-zone loss (2.0 and 1.8
+ohm): the base resistance would go negative. What a screen saves out there
+is sky power (a smaller reflection deficit at low angles), not a base
+resistance, and belongs in the pattern (Wait's far-field compensation
+theorem for a ground screen), which this module does not set. (2) Monteath's
+impedance form, Re (1/I_0^2) int Z_s H_phi^2 dS, converges with no limit
+(bare soil 55.7 and 79.6 ohm, settled by one wavelength), but with the
+field's phase the ring from about 0.28 to 0.57 wavelength counts negative:
+longer radials would raise the loss (113 radials on average soil at 3 MHz:
+0.5 ohm at 0.25 wl, 2.0 ohm at 0.41 wl) and dense quarter-wave screens on
+poor soil give less than nothing. It is the base-impedance change, the
+screen's change of radiation included, and again needs a pattern that sees
+the screen. Real radials longer than half a wavelength do help, mostly at
+low angles; the model does not show it, and the radial table stops at 0.3
+wavelength.
+
 Neighbours (common practice): radials of neighbouring elements are cut where
 they meet and bonded along the midline. So at each point of the plane the
 screen is that of the nearest element (its Voronoi cell), with that
 element's wire spacing there. Each element's loss is integrated over its own
 field; the cross terms between the fields of different elements (which
 depend on the switch state) are left out, so the loss stays one resistance
-per base. The copper resistance of the wires themselves is not counted
-(small beside the soil's at HF).
+per base.
+
+Copper. The wires' own loss is in Re(Z_s) through R' d; it is also
+reported on its own. The parallel combination is a current divider: of the
+surface current H_phi the wires carry K_w = H_phi Z_g / (Z_w + Z_g) (at
+their depth: times the line's current ratio 1 / (cosh gt + Z_plane/Z_g
+sinh gt)), each wire K_w d, and the copper takes R' d |K_w|^2 per unit area
+(1/2 R' |I_w|^2 per metre of each wire, N wires d apart); the soil the
+rest. Near the base the wires are close (Z_w << Z_g) and carry all of the
+current crossing the circle, I(rho) = 2 pi rho H_phi, split among N
+radials: the copper is the textbook R' L / N for a quarter-wave element,
+and no separate term is needed for it. Far out, where the wires are sparse
+and their reactance exceeds the soil's impedance, the soil carries most of
+the current and the copper little; over sea water that holds beyond the
+first metres, so thin wire there costs less than R' L / N suggests. With
+2 mm copper over ordinary soil the copper is a few hundredths of an ohm,
+against ohms in the soil; it becomes a large share only where a dense screen
+has shielded the soil. A perfectly conducting wire (``wire_sigma_s_m =
+inf``) gives the lossless grid exactly.
 
 References
 ----------
 J. R. Wait, "The impedance of a wire grid parallel to a dielectric
-interface", IRE Trans. Microwave Theory Tech., MTT-5, 1957 (grid impedance).
+interface", IRE Trans. Microwave Theory Tech., MTT-5, 1957 (grid impedance;
+the wires' series impedance per unit length times the spacing adds to it,
+from memory).
+S. Ramo, J. R. Whinnery and T. Van Duzer, *Fields and Waves in
+Communication Electronics*, sec. 5.6 (internal impedance of a round wire,
+from memory).
 J. R. Wait and W. A. Pope, "Input resistance of L.F. unipole aerials",
 Wireless Engineer 32, 1955 (radial screen in parallel with the soil, loss by
 the compensation theorem).
@@ -54,6 +122,12 @@ G. D. Monteath, "Application of the compensation theorem to certain
 radiation and propagation problems", Proc. IEE 98 (IV), 1951.
 S. A. Schelkunoff and H. T. Friis, *Antennas: Theory and Practice*, 1952
 (field of a sinusoidal current filament).
+K. A. Norton, "The propagation of radio waves over the surface of the earth
+and in the upper atmosphere", Proc. IRE 24, 1936 and 25, 1937 (ground-wave
+attenuation function, used in the energy check; from memory).
+J. R. Wait, "Effect of the ground screen on the field radiated from a
+monopole", IRE Trans. Antennas Propag. AP-4, 1956 (the screen's effect on the
+far field, not modelled here; from memory).
 G. H. Brown, R. F. Lewis and J. Epstein, "Ground systems as a factor in
 antenna efficiency", Proc. IRE 25, 1937 (the measurements the tests follow).
 """
@@ -65,6 +139,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .conductor import COPPER_S_M, wire_resistance_ohm_per_m
 from .ground import complex_permittivity
 from .model import DEFAULT_GROUND_LOSS_OHM, ArrayOption, ArraySpec, Ground, Radials
 from .mom import C0_M_S, ETA0_OHM, solve_elements
@@ -77,6 +152,8 @@ __all__ = [
     "plane_field_a_per_m",
     "soil_surface_impedance_ohm",
     "screen_surface_impedance_ohm",
+    "wire_impedance_ohm_per_m",
+    "radial_copper_loss_ohm",
 ]
 
 MU0_H_M = ETA0_OHM / C0_M_S
@@ -97,10 +174,14 @@ class GroundLoss:
     source : str
         ``"radials"`` (computed from ``[array.radials]``) or ``"given"``
         (``ground_loss_ohm`` of the site, or its default).
+    copper_ohm : ndarray, shape (n_el,), or None
+        The part of ``ohm`` spent in the copper of buried radials (the rest
+        is the soil's); None where it is not computed (given, elevated).
     """
 
     ohm: np.ndarray
     source: str
+    copper_ohm: np.ndarray | None = None
 
 
 def soil_surface_impedance_ohm(ground: Ground, freq_hz: float) -> complex:
@@ -117,8 +198,73 @@ def soil_surface_impedance_ohm(ground: Ground, freq_hz: float) -> complex:
     return complex(ETA0_OHM * np.sqrt(e - 1.0 + 0j) / e)
 
 
+def wire_impedance_ohm_per_m(freq_hz: float, wire_radius_m: float, sigma_s_m: float = COPPER_S_M) -> complex:
+    """Internal series impedance per metre of a round radial wire.
+
+    In the skin regime the internal impedance of a round wire is
+    (1 + j) R_s / (2 pi a): its reactance equals its resistance. Below it
+    (skin deeper than the radius) the direct-current resistance and the
+    internal inductance mu0 / (8 pi) per metre hold.
+
+    Parameters
+    ----------
+    freq_hz, wire_radius_m : float
+    sigma_s_m : float
+        Conductivity; ``math.inf`` is a perfect conductor (0 returned).
+
+    Returns
+    -------
+    complex
+        Ohm per metre.
+
+    References
+    ----------
+    Ramo, Whinnery and Van Duzer, *Fields and Waves in Communication
+    Electronics*, sec. 5.6 (internal impedance of a round wire, from memory).
+    """
+    if math.isinf(sigma_s_m):
+        return 0j
+    r = wire_resistance_ohm_per_m(freq_hz, wire_radius_m, sigma_s_m)
+    r_dc = 1.0 / (sigma_s_m * math.pi * wire_radius_m ** 2)
+    x = r if r > r_dc else 2.0 * math.pi * freq_hz * MU0_H_M / (8.0 * math.pi)
+    return complex(r, x)
+
+
+def _screen(ground: Ground, freq_hz: float, count: int, wire_radius_m: float, depth_m: float, rho_m,
+            wire_sigma_s_m: float) -> tuple[np.ndarray, np.ndarray]:
+    """Surface impedance over the screen and the wires' share of the surface field.
+
+    Returns (Z_s, s) with Z_s in ohm and s = K_w / H_phi, the wires' surface
+    current (A/m, smeared over the spacing) per unit of H_phi at the surface;
+    both complex, shape of ``rho_m``.
+    """
+    rho = np.asarray(rho_m, dtype=float)
+    omega = 2.0 * math.pi * freq_hz
+    d = 2.0 * math.pi * rho / count
+    z_i = wire_impedance_ohm_per_m(freq_hz, wire_radius_m, wire_sigma_s_m)
+    z_w = z_i * d + 1j * omega * MU0_H_M * d / (2.0 * math.pi) * np.log(
+        np.maximum(d / (2.0 * math.pi * wire_radius_m), 1.0))
+    z_g = soil_surface_impedance_ohm(ground, freq_hz)
+    if z_g == 0:
+        return np.zeros(rho.shape, dtype=complex), np.zeros(rho.shape, dtype=complex)
+    z_plane = z_w * z_g / (z_w + z_g)
+    share = z_g / (z_w + z_g)          # current divider: the wires' part of the field at their depth
+    if depth_m <= 0:
+        return z_plane, share
+    e = complex_permittivity(ground, freq_hz)
+    gamma = 1j * 2.0 * math.pi * freq_hz / C0_M_S * np.sqrt(e - 1.0 + 0j)
+    th = np.tanh(gamma * depth_m)
+    z_top = z_g * (z_plane + z_g * th) / (z_g + z_plane * th)
+    # H at the screen over H at the surface, 1 / (cosh gt + (Z_plane/Z_g) sinh gt), written
+    # with exp(-gt) so that a deep screen in sea water does not overflow
+    q = np.exp(-gamma * depth_m)
+    r = z_plane / z_g
+    down = 2.0 * q / ((1.0 + r) + (1.0 - r) * q * q)
+    return z_top, share * down
+
+
 def screen_surface_impedance_ohm(ground: Ground, freq_hz: float, count: int, wire_radius_m: float,
-                                 depth_m: float, rho_m) -> np.ndarray:
+                                 depth_m: float, rho_m, wire_sigma_s_m: float = COPPER_S_M) -> np.ndarray:
     """Surface impedance over a radial screen of ``count`` wires at radius ``rho_m``.
 
     Parameters
@@ -131,33 +277,25 @@ def screen_surface_impedance_ohm(ground: Ground, freq_hz: float, count: int, wir
         Wire radius; burial depth (0 = on the surface).
     rho_m : array_like, shape (n,)
         Distances from the element's base.
+    wire_sigma_s_m : float
+        Conductivity of the wire, default copper; ``math.inf`` for a perfect
+        conductor (the screen of a lossless grid).
 
     Returns
     -------
     ndarray of complex, shape (n,)
-        Ohm; the grid impedance Z_w = j omega mu0 (d/2pi) ln(d/2pi a),
-        d = 2 pi rho / N (zero where the wires touch), in parallel with the
-        soil, seen through ``depth_m`` of soil.
+        Ohm; the grid impedance Z_w = Z_i d + j omega mu0 (d/2pi) ln(d/2pi a),
+        d = 2 pi rho / N (the log term zero where the wires touch), Z_i the
+        wire's internal impedance per metre, in parallel with the soil, seen
+        through ``depth_m`` of soil.
 
     References
     ----------
-    Wait (1957), wire-grid impedance; Wait and Pope (1955), screen in
-    parallel with the soil.
+    Wait (1957), wire-grid impedance, with the wires' own series impedance
+    per unit length times the spacing (from memory); Wait and Pope (1955),
+    screen in parallel with the soil.
     """
-    rho = np.asarray(rho_m, dtype=float)
-    omega = 2.0 * math.pi * freq_hz
-    d = 2.0 * math.pi * rho / count
-    z_w = 1j * omega * MU0_H_M * d / (2.0 * math.pi) * np.log(np.maximum(d / (2.0 * math.pi * wire_radius_m), 1.0))
-    z_g = soil_surface_impedance_ohm(ground, freq_hz)
-    if z_g == 0:
-        return np.zeros(rho.shape, dtype=complex)
-    z_plane = z_w * z_g / (z_w + z_g)
-    if depth_m <= 0:
-        return z_plane
-    e = complex_permittivity(ground, freq_hz)
-    gamma = 1j * 2.0 * math.pi * freq_hz / C0_M_S * np.sqrt(e - 1.0 + 0j)
-    th = np.tanh(gamma * depth_m)
-    return z_g * (z_plane + z_g * th) / (z_g + z_plane * th)
+    return _screen(ground, freq_hz, count, wire_radius_m, depth_m, rho_m, wire_sigma_s_m)[0]
 
 
 def plane_field_a_per_m(node_current_a: np.ndarray, segment_m: float, freq_hz: float, rho_m) -> np.ndarray:
@@ -211,7 +349,9 @@ def _log_grid(a: float, b: float, n: int) -> tuple[np.ndarray, np.ndarray]:
 
 @functools.lru_cache(maxsize=256)
 def _radial_loss(ground: Ground, radials: Radials, height_m: float, radius_m: float,
-                 positions: tuple[tuple[float, float], ...], freq_hz: float) -> np.ndarray:
+                 positions: tuple[tuple[float, float], ...], freq_hz: float,
+                 wire_sigma_s_m: float = COPPER_S_M) -> tuple[np.ndarray, np.ndarray]:
+    """(total, copper) loss per base, ohm, shape (n_el,) each."""
     wavelength_m = C0_M_S / freq_hz
     outer = NEAR_ZONE_WAVELENGTHS * wavelength_m
     sol = solve_elements(height_m, radius_m, ((0.0, 0.0),), freq_hz)
@@ -226,14 +366,25 @@ def _radial_loss(ground: Ground, radials: Radials, height_m: float, radius_m: fl
     z_soil = soil_surface_impedance_ohm(ground, freq_hz).real
     depth = radials.depth_m or 0.0
     wire_r = 0.5e-3 * radials.wire_diameter_mm
+    r_wire = wire_impedance_ohm_per_m(freq_hz, wire_r, wire_sigma_s_m).real
     pos = np.asarray(positions, dtype=float)
     n_el = pos.shape[0]
-    out = np.empty(n_el)
+
+    def rings(owner_rho, covered):
+        """Re Z_s and the copper's part of it, 0 where the soil is bare."""
+        z_s, share = _screen(ground, freq_hz, radials.count, wire_r, depth, owner_rho, wire_sigma_s_m)
+        # copper: 1/2 R' |I_w|^2 per metre of wire, I_w = K_w d, wires d apart: R' d |K_w|^2 per area
+        cu = r_wire * (2.0 * math.pi * owner_rho / radials.count) * np.abs(share) ** 2
+        return np.where(covered, z_s.real, z_soil), np.where(covered, cu, 0.0)
+
+    def integral(per_area):
+        return 2.0 * math.pi * float(np.sum(w_rho * per_area * h2 * rho * rho))
+
     if n_el == 1:
-        re_z = np.where(inner, screen_surface_impedance_ohm(ground, freq_hz, radials.count, wire_r,
-                                                                    depth, rho).real, z_soil)
-        out[0] = 2.0 * math.pi * float(np.sum(w_rho * re_z * h2 * rho * rho))
-        return out
+        re_z, cu = rings(rho, inner)
+        return np.array([integral(re_z)]), np.array([integral(cu)])
+    total = np.empty(n_el)
+    copper = np.empty(n_el)
     phi = np.arange(_N_PHI) * (2.0 * math.pi / _N_PHI)
     for i in range(n_el):
         px = pos[i, 0] + rho[:, None] * np.cos(phi)[None, :]
@@ -242,18 +393,28 @@ def _radial_loss(ground: Ground, radials: Radials, height_m: float, radius_m: fl
         owner = np.argmin(dist, axis=-1)   # radials cut at the midlines: the nearest element's screen
         own = owner == i
         owner_rho = np.where(own, rho[:, None], np.min(dist, axis=-1))
-        screen = screen_surface_impedance_ohm(ground, freq_hz, radials.count, wire_r, depth,
-                                              np.maximum(owner_rho, radius_m)).real
         covered = np.where(own, inner[:, None], owner_rho <= length)
-        re_z = np.where(covered, screen, z_soil)
-        ring = np.mean(re_z, axis=1)  # average over azimuth
-        out[i] = 2.0 * math.pi * float(np.sum(w_rho * ring * h2 * rho * rho))
-    return out
+        re_z, cu = rings(np.maximum(owner_rho, radius_m), covered)
+        total[i] = integral(np.mean(re_z, axis=1))   # average over azimuth
+        copper[i] = integral(np.mean(cu, axis=1))
+    return total, copper
+
+
+def _loss_args(radials, height_m, radius_m, positions_m, freq_hz):
+    if not radials.buried:
+        raise ValueError("elevated radials are not a surface impedance; see the site checks")
+    pos = tuple((float(a), float(b)) for a, b in np.asarray(positions_m, dtype=float).reshape(-1, 2))
+    return float(height_m), float(radius_m), pos, float(freq_hz)
+
+
+def _read_only(x: np.ndarray) -> np.ndarray:
+    x.flags.writeable = False
+    return x
 
 
 def radial_loss_ohm(ground: Ground, radials: Radials, height_m: float, radius_m: float, positions_m,
-                    freq_hz: float) -> np.ndarray:
-    """Loss resistance at each base of buried radials over real soil.
+                    freq_hz: float, wire_sigma_s_m: float = COPPER_S_M) -> np.ndarray:
+    """Loss resistance at each base of buried radials over real soil (soil and copper).
 
     Parameters
     ----------
@@ -265,6 +426,9 @@ def radial_loss_ohm(ground: Ground, radials: Radials, height_m: float, radius_m:
         The elements.
     positions_m : array_like, shape (n_el, 2)
     freq_hz : float
+    wire_sigma_s_m : float
+        Conductivity of the radial wire, default copper; ``math.inf`` leaves
+        the copper out (a perfectly conducting screen).
 
     Returns
     -------
@@ -276,12 +440,24 @@ def radial_loss_ohm(ground: Ground, radials: Radials, height_m: float, radius_m:
     Monteath (1951), compensation theorem; Wait and Pope (1955), screen in
     parallel with the soil; Wait (1957), grid impedance.
     """
-    if not radials.buried:
-        raise ValueError("elevated radials are not a surface impedance; see the site checks")
-    pos = tuple((float(a), float(b)) for a, b in np.asarray(positions_m, dtype=float).reshape(-1, 2))
-    out = _radial_loss(ground, radials, float(height_m), float(radius_m), pos, float(freq_hz))
-    out.flags.writeable = False
-    return out
+    args = _loss_args(radials, height_m, radius_m, positions_m, freq_hz)
+    return _read_only(_radial_loss(ground, radials, *args, float(wire_sigma_s_m))[0])
+
+
+def radial_copper_loss_ohm(ground: Ground, radials: Radials, height_m: float, radius_m: float, positions_m,
+                           freq_hz: float, wire_sigma_s_m: float = COPPER_S_M) -> np.ndarray:
+    """The part of :func:`radial_loss_ohm` spent in the radial wires themselves.
+
+    Same parameters and cache as :func:`radial_loss_ohm`; the rest of that
+    loss is the soil's.
+
+    Returns
+    -------
+    ndarray, shape (n_el,)
+        Ohm, referred to each base current; read-only.
+    """
+    args = _loss_args(radials, height_m, radius_m, positions_m, freq_hz)
+    return _read_only(_radial_loss(ground, radials, *args, float(wire_sigma_s_m))[1])
 
 
 def ground_loss(spec: ArraySpec, option: ArrayOption | None, freq_hz: float) -> GroundLoss:
@@ -304,5 +480,5 @@ def ground_loss(spec: ArraySpec, option: ArrayOption | None, freq_hz: float) -> 
         one = elevated_loss_ohm(spec.ground, spec.height_m, spec.radius_m, r.height_m, r.count, r.length_m,
                                 0.5e-3 * r.wire_diameter_mm, float(freq_hz))
         return GroundLoss(np.full(n, one), "radials")
-    return GroundLoss(radial_loss_ohm(spec.ground, spec.radials, spec.height_m, spec.radius_m, positions,
-                                      freq_hz), "radials")
+    args = (spec.ground, spec.radials, spec.height_m, spec.radius_m, positions, freq_hz)
+    return GroundLoss(radial_loss_ohm(*args), "radials", radial_copper_loss_ohm(*args))

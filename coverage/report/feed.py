@@ -318,6 +318,8 @@ def build(site, args=None) -> dict:
                 "ground_loss_ohm": round(float(np.mean(loss.ohm)), 3),
                 "ground_loss_source": loss.source,
                 "ground_loss_per_element_ohm": [round(float(x), 3) for x in loss.ohm],
+                "ground_loss_copper_ohm": (None if loss.copper_ohm is None
+                                           else round(float(np.mean(loss.copper_ohm)), 4)),
                 "elevated_copper_loss_ohm": _elevated_copper(spec, band.freq_hz),
                 "impedance_matrix_ohm": [[pair(z) for z in row] for row in sol.impedance_ohm],
                 "states": [_state_row(spec, option, s, band, power) for s in option.states],
@@ -366,12 +368,15 @@ def radial_table_json(table) -> dict:
         "radial_table": [{"count": r.count, "length_wavelengths": r.length_wavelengths,
                           "length_m": round(r.length_m, 2), "loss_ohm": round(r.loss_ohm, 3),
                           "efficiency": round(r.efficiency, 4), "gain_change_db": round(r.gain_change_db, 3),
+                          "copper_loss_ohm": round(r.copper_loss_ohm, 4),
                           "as_built": _as_built(r.fed)} for r in table.rows],
         "radial_table_reference": {
             "state": table.state_name, "depth_m": table.depth_m, "wire_diameter_mm": table.wire_diameter_mm,
             "beam_azimuth_deg_array_frame": table.beam_azimuth_deg,
             "beam_elevation_deg": table.beam_elevation_deg,
             "site_loss_ohm": round(table.site_loss_ohm, 3), "site_efficiency": round(table.site_efficiency, 4),
+            "site_copper_loss_ohm": (None if table.site_copper_loss_ohm is None
+                                     else round(table.site_copper_loss_ohm, 4)),
             "as_built": _as_built(table.site_fed)},
     }
 
@@ -508,16 +513,19 @@ def _table_text(b, rad) -> list[str]:
     ref = b["radial_table_reference"]
     lengths = sorted({r["length_wavelengths"] for r in b["radial_table"]})
     out = [f"  buried radials ({ref['depth_m']:g} m deep, {ref['wire_diameter_mm']:g} mm wire), state "
-           f"{ref['state']!r}; now ({system_text(rad)}) {ref['site_loss_ohm']:.2f} ohm, efficiency "
+           f"{ref['state']!r}; now ({system_text(rad)}) {ref['site_loss_ohm']:.2f} ohm"
+           + ("" if ref.get("site_copper_loss_ohm") is None else f" (cu {ref['site_copper_loss_ohm']:.2f})")
+           + ", efficiency "
            f"{100 * ref['site_efficiency']:.0f} %:",
-           "    count " + "".join(f"{f'{x:g} wavelength':>26}" for x in lengths),
-           "          " + "".join(f"{'ohm   eff.  gain dB':>26}" for _ in lengths)]
+           "    count " + "".join(f"{f'{x:g} wavelength':>30}" for x in lengths),
+           "          " + "".join(f"{'ohm (cu)   eff.  gain dB':>30}" for _ in lengths)]
     for n in sorted({r["count"] for r in b["radial_table"]}):
         cells = []
         for x in lengths:
             r = next(r for r in b["radial_table"] if r["count"] == n and r["length_wavelengths"] == x)
-            cells.append(f"{r['loss_ohm']:>12.2f} {100 * r['efficiency']:>4.0f}% {r['gain_change_db']:>+7.2f}")
-        out.append(f"    {n:>5} " + "".join(f"{c:>26}" for c in cells))
+            cells.append(f"{r['loss_ohm']:>9.2f} ({r['copper_loss_ohm']:.2f}) {100 * r['efficiency']:>4.0f}% "
+                         f"{r['gain_change_db']:>+7.2f}")
+        out.append(f"    {n:>5} " + "".join(f"{c:>30}" for c in cells))
     for fed in ref["as_built"]:
         rows = [r for r in b["radial_table"] if r["as_built"]]
         lo = min(rows, key=lambda r: r["loss_ohm"])
@@ -534,9 +542,10 @@ def _table_text(b, rad) -> list[str]:
 def _footnotes(result) -> list[str]:
     notes = ["Ground loss: series resistance at each base standing for the radial system and soil "
              "(\"from the radials\": buried-screen surface impedance in parallel with the soil, integrated "
-             "over the base's field to half a wavelength; \"as given\": ground_loss_ohm of the site, "
-             "default 2 ohm).",
-             "Radial table: loss = that resistance per base; eff. = share of the power into the bases not lost "
+             "over the base's field to half a wavelength, the wires' copper included; \"as given\": "
+             "ground_loss_ohm of the site, default 2 ohm).",
+             "Radial table: loss = that resistance per base (cu: the part of it in the radial wires' own "
+             "copper, skin effect; the rest is the soil's); eff. = share of the power into the bases not lost "
              "in the ground; gain dB = change of the state's gain toward its beam against the site's own "
              "ground system; as built = true currents (amplitude/phase rel. element 1) and front-to-back of "
              "fed states."]

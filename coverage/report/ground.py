@@ -37,18 +37,22 @@ def ground_summary(site) -> dict:
     """JSON-ready: the soil, where the loss comes from, the loss per band and option, the foreground."""
     spec = site.array
     loss = {}
+    copper = {}
     source = "given"
     for band in site.bands:
         for option in spec.options:
             g = ground_loss(spec, option, band.freq_hz)
             source = g.source
             loss.setdefault(band.name, {})[option.name] = round(float(np.mean(g.ohm)), 3)
+            copper.setdefault(band.name, {})[option.name] = (None if g.copper_ohm is None
+                                                             else round(float(np.mean(g.copper_ohm)), 4))
     return {
         "ground": spec.ground.name,
         "ground_loss_source": source,
         # neither radials nor ground_loss_ohm in the site: the loss is the default
         "ground_loss_default": spec.ground_loss_ohm is None and spec.radials is None,
         "ground_loss_ohm": loss,
+        "ground_loss_copper_ohm": copper,   # the buried radials' copper part of it; null: not computed
         "radials": radials_json(spec),
         "foreground": foreground_json(spec),
     }
