@@ -404,3 +404,18 @@ def test_plan_page_lobes_are_the_maps_lobes_with_a_foreground():
     (drawn,) = [o for o in page_drawing(site, plan)["options"] if o["option"] == scene.option]
     for lobe in scene.lobes:
         assert np.abs(np.array(drawn["lobes_km"]["40 m"][lobe.state]) - lobe.radius_km).max() <= 0.5
+
+
+def test_a_step_above_the_only_lobe_still_leaves_that_lobe():
+    # A sector edge that stands more than the lobe window above the row's one
+    # smooth maximum (here +6 dB of sea over 100..200 deg, beyond the
+    # cardioid's -3 dB point) must not leave the row without a lobe: the
+    # window counts from the strongest lobe kept. Found with sharp edges.
+    import numpy as np
+
+    from lobeplan.antenna.pattern import lobe_bearings_deg
+
+    az = np.arange(360.0)
+    row = 10 * np.log10(np.maximum((1 + np.cos(np.radians(az - 30))) / 2, 1e-6) + 0.05)
+    stepped = row + np.where((az >= 100) & (az < 200), 6.0, 0.0)
+    assert [round(b) for b, _ in lobe_bearings_deg(stepped)] == [30]

@@ -545,7 +545,8 @@ def lobe_bearings_deg(row_dbi: np.ndarray, within_db: float = LOBE_WINDOW_DB) ->
         peaks = np.asarray(smooth, dtype=int)
     else:  # only steps: the strongest still marks where the beam is
         peaks = peaks[[int(np.argmax(g[peaks]))]]
-    top = float(np.max(g))
+    # the window is measured from the strongest lobe kept (a step's high side may stand above it)
+    top = float(np.max(g[peaks])) if peaks.size else float(np.max(g))
     out = []
     for i in peaks:
         if g[i] < top - within_db - _TIE_DB:
