@@ -77,6 +77,7 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
+from scipy import sparse
 
 from .conductor import wire_resistance_ohm_per_m
 from .ground import complex_permittivity
@@ -292,32 +293,56 @@ def _pair_integrals(k, ps, pe, qs, qe, a, gt, gtw, gs, gsw):
                      np.sum(wt * j0, axis=1)])
 
 
+def _plain_block(k, ps, pe, qs, qe, a):
+    """Pair integrals (5, n_p, n_q) of a block of test rows against every source, plain 2 x 2 Gauss.
+
+    For distant pairs (over six segment lengths apart) 1/R varies slowly
+    along both segments, so the u-substitution that tames the near
+    singularity is not needed: the Green's function between the Gauss
+    points of the two segments, weighted by the shapes, does it.
+    """
+    x = 0.5 * (_FAREST[0] + 1.0)
+    w = 0.5 * _FAREST[1]
+    lp = np.linalg.norm(pe - ps, axis=1)
+    lq = np.linalg.norm(qe - qs, axis=1)
+    obs = ps[:, None, :] + x[None, :, None] * (pe - ps)[:, None, :]            # (p, 2, 3)
+    src = qs[:, None, :] + x[None, :, None] * (qe - qs)[:, None, :]            # (q, 2, 3)
+    d2 = (np.sum(obs ** 2, axis=-1)[:, :, None, None] + np.sum(src ** 2, axis=-1)[None, None, :, :]
+          - 2.0 * np.einsum("pic,qgc->piqg", obs, src))
+    r = np.sqrt(np.maximum(d2, 0.0) + (a * a)[:, None, :, None])
+    g = np.exp(-1j * k * r) / r                                                 # (p, 2, q, 2)
+    scale = lp[:, None] * lq[None, :]
+    rise_w = w * x
+    fall_w = w * (1.0 - x)
+    out = np.empty((5,) + scale.shape, dtype=complex)
+    for n, (u, v) in enumerate(((rise_w, rise_w), (rise_w, fall_w), (fall_w, rise_w), (fall_w, fall_w), (w, w))):
+        out[n] = np.einsum("i,piqg,g->pq", u, g, v) * scale
+    return out
+
+
 def _integrals(k, start, end, radius, src_start, src_end, src_radius):
-    """All pair integrals (5, n_seg, n_seg), fine rule on near pairs, coarse elsewhere."""
+    """All pair integrals (5, n_seg, n_seg): plain rule on distant pairs, finer rules on the rest."""
     n = start.shape[0]
     mid_p = 0.5 * (start + end)
     mid_q = 0.5 * (src_start + src_end)
     len_p = np.linalg.norm(end - start, axis=1)
     len_q = np.linalg.norm(src_end - src_start, axis=1)
     out = np.empty((5, n, n), dtype=complex)
-    rows = max(1, _PAIR_CHUNK // n)
+    rows = max(1, _PAIR_CHUNK // (4 * n))
     for p0 in range(0, n, rows):
         p = np.arange(p0, min(n, p0 + rows))
-        pi = np.repeat(p, n)
-        qi = np.tile(np.arange(n), p.size)
         # the reduced kernel at the thicker wire's radius (a thin radial seen from the vertical's surface)
-        a = np.maximum(radius[pi], src_radius[qi])
-        dist = np.linalg.norm(mid_p[pi] - mid_q[qi], axis=1) / (len_p[pi] + len_q[qi])
-        vals = np.empty((5, pi.size), dtype=complex)
+        a = np.maximum(radius[p][:, None], src_radius[None, :])
+        out[:, p, :] = _plain_block(k, start[p], end[p], src_start, src_end, a)
+        dist = np.linalg.norm(mid_p[p][:, None, :] - mid_q[None, :, :], axis=-1) / (len_p[p][:, None] + len_q[None, :])
         for sel, (gt, gtw, gs, gsw) in (
-                (dist >= _FAREST_FACTOR, _FAREST + _FAREST),
                 ((dist >= _NEAR_FACTOR) & (dist < _FAREST_FACTOR), (_FAR_T, _FAR_TW, _FAR_S, _FAR_SW)),
                 (dist < _NEAR_FACTOR, (_NEAR_T, _NEAR_TW, _NEAR_S, _NEAR_SW))):
-            if np.any(sel):
-                ps_, qs_ = pi[sel], qi[sel]
-                vals[:, sel] = _pair_integrals(k, start[ps_], end[ps_], src_start[qs_], src_end[qs_], a[sel],
-                                               gt, gtw, gs, gsw)
-        out[:, p, :] = vals.reshape(5, p.size, n)
+            pr, qr = np.nonzero(sel)
+            if pr.size:
+                ps_ = p[pr]
+                out[:, ps_, qr] = _pair_integrals(k, start[ps_], end[ps_], src_start[qr], src_end[qr], a[pr, qr],
+                                                  gt, gtw, gs, gsw)
     return out
 
 
@@ -348,31 +373,39 @@ def _solve_array(height_m: float, radius_m: float, hub_m: float, count: int, len
     sca = direct[4] - gamma * image[4]
     n_b = len(bases)
     # half-functions: index 2 p (rising on segment p) and 2 p + 1 (falling)
-    b_mat = np.zeros((2 * n_seg, n_b))
-    d_mat = np.zeros((n_seg, n_b))
+    rows_b, cols_b, vals_b, rows_d, vals_d = [], [], [], [], []
     for m, halves in enumerate(bases):
         for seg, sign, shape in halves:
-            b_mat[2 * seg + (0 if shape > 0 else 1), m] += sign
-            d_mat[seg, m] += sign * shape / length[seg]
+            rows_b.append(2 * seg + (0 if shape > 0 else 1))
+            cols_b.append(m)
+            vals_b.append(sign)
+            rows_d.append(seg)
+            vals_d.append(sign * shape / length[seg])
+    # each half-function belongs to one or a few bases: sparse maps keep the assembly O(n^2)
+    b_mat = sparse.csr_matrix((vals_b, (rows_b, cols_b)), shape=(2 * n_seg, n_b))
+    d_mat = sparse.csr_matrix((vals_d, (rows_d, cols_b)), shape=(n_seg, n_b))
     a_half = np.empty((2 * n_seg, 2 * n_seg), dtype=complex)
     a_half[0::2, 0::2] = vec[0]
     a_half[0::2, 1::2] = vec[1]
     a_half[1::2, 0::2] = vec[2]
     a_half[1::2, 1::2] = vec[3]
-    z = (1j * omega * _MU0 / (4.0 * math.pi)) * (b_mat.T @ a_half @ b_mat) \
-        - (1j / (4.0 * math.pi * omega * _EPS0)) * (d_mat.T @ sca @ d_mat)
+
+    def project(m_dense, mat):
+        return np.asarray((mat.T @ (mat.T @ m_dense.T).T))       # mat^T M mat
+
+    z = (1j * omega * _MU0 / (4.0 * math.pi)) * project(a_half, b_mat) \
+        - (1j / (4.0 * math.pi * omega * _EPS0)) * project(sca, d_mat)
     r_per_m = wire_resistance_ohm_per_m(freq_hz, wire_radius_m) if copper else 0.0
     if copper:
         # a wire of R' ohm per metre: E_t = R' I on it, so Z_mn gains int R' f_m f_n dl
         # (rising x rising L/3, rising x falling L/6 on each radial segment)
-        load = np.zeros((2 * n_seg, 2 * n_seg))
         rl = np.where(vertical, 0.0, r_per_m * length)
         idx = np.arange(n_seg)
-        load[2 * idx, 2 * idx] = rl / 3.0
-        load[2 * idx + 1, 2 * idx + 1] = rl / 3.0
-        load[2 * idx, 2 * idx + 1] = rl / 6.0
-        load[2 * idx + 1, 2 * idx] = rl / 6.0
-        z = z + b_mat.T @ load @ b_mat
+        load = sparse.csr_matrix((np.concatenate([rl / 3.0, rl / 3.0, rl / 6.0, rl / 6.0]),
+                                  (np.concatenate([2 * idx, 2 * idx + 1, 2 * idx, 2 * idx + 1]),
+                                   np.concatenate([2 * idx, 2 * idx + 1, 2 * idx + 1, 2 * idx]))),
+                                 shape=(2 * n_seg, 2 * n_seg))
+        z = z + (b_mat.T @ load @ b_mat).toarray()
     n_el = pos.shape[0]
     v = np.zeros((n_b, n_el))
     v[ports >= 0, ports[ports >= 0]] = 1.0
@@ -642,11 +675,18 @@ def radiation_vectors(sol: ElevatedArray, elevation_deg, azimuth_deg) -> tuple[n
     v_dir, v_img, h_dir, h_img = (np.empty(shape, dtype=complex) for _ in range(4))
     ca, sa = np.cos(az), np.sin(az)
     proj = np.outer(ca, pts[:, 0]) + np.outer(sa, pts[:, 1])                    # (az, P)
+    n_half = az.size // 2
+    half_turn = bool(az.size % 2 == 0 and n_half > 0
+                     and np.allclose(np.mod(az[n_half:] - az[:n_half], 2 * math.pi), math.pi, atol=1e-12))
     moments = np.stack([m_dir, m_img]).reshape(2, pts.shape[0], -1)             # (2, P, 3 port)
     rows = max(1, 2_000_000 // max(1, az.size * pts.shape[0]))
     for r0 in range(0, psi.size, rows):
         cp, sp = np.cos(psi[r0:r0 + rows]), np.sin(psi[r0:r0 + rows])
-        horiz = np.exp(1j * k * cp[:, None, None] * proj[None, :, :])               # (row, az, P)
+        if half_turn:   # the bearing opposite each azimuth sees the conjugate horizontal phase
+            h0 = np.exp(1j * k * cp[:, None, None] * proj[None, :n_half, :])
+            horiz = np.concatenate([h0, np.conj(h0)], axis=1)                         # (row, az, P)
+        else:
+            horiz = np.exp(1j * k * cp[:, None, None] * proj[None, :, :])
         up = np.exp(1j * k * sp[:, None] * pts[None, :, 2])                          # (row, P)
         for which, (v_out, h_out) in enumerate(((v_dir, h_dir), (v_img, h_img))):
             ph = horiz * (up if which == 0 else np.conj(up))[:, None, :]
