@@ -382,6 +382,16 @@ def _check_radials(r: _Reader, array: ArraySpec, bands: tuple[Band, ...]) -> Non
         if x > MAX_ELEVATED_WAVELENGTHS:
             raise r.fail("array.radials.length_m", f"{rad.length_m:g} m is {x:.2f} wavelength on band {b.name!r}; "
                          f"elevated radials are modelled up to {MAX_ELEVATED_WAVELENGTHS:g} wavelength")
+    from .antenna.elevated import SEGMENT_LIMIT, segment_count
+
+    for b in bands:
+        for o in array.options:
+            n = segment_count(array.height_m, rad.count, rad.length_m, o.positions_m, b.freq_hz, 20.0)
+            if n > SEGMENT_LIMIT:
+                raise r.fail("array.radials.count", f"{rad.count} elevated radials of {rad.length_m:g} m on each "
+                             f"of the {o.n_elements} elements of option {o.name!r} make {n} wire segments on band "
+                             f"{b.name!r}, more than the {SEGMENT_LIMIT} the moment method solves here; expected "
+                             "fewer or shorter radials")
     if rad.wire_diameter_mm * 1e-3 * 10.0 >= rad.length_m:
         raise r.fail("array.radials.wire_diameter_mm", f"{rad.wire_diameter_mm:g} mm is too fat for "
                      f"{rad.length_m:g} m radials; expected a thin wire")
@@ -556,6 +566,16 @@ def mesh_caveats(site: "Site") -> tuple[str, ...]:
             r = a.radials
             e = elevated_mesh(a.height_m, a.radius_m, r.height_m, r.count, r.length_m, 0.5e-3 * r.wire_diameter_mm,
                               b.freq_hz, a.ground)
+            from .antenna.elevated import SEGMENT_BUDGET, array_mesh
+
+            for o in a.options:
+                pw = array_mesh(a.height_m, a.radius_m, r.height_m, r.count, r.length_m, 0.5e-3 * r.wire_diameter_mm,
+                                o.positions_m, b.freq_hz, a.ground)
+                if pw < e.per_wavelength:
+                    out.append(f"On {b.name} the wires of option {o.name!r} are meshed at {pw:g} segments per "
+                               f"wavelength, coarser than one element's {e.per_wavelength:g}, to keep the solution "
+                               f"within {SEGMENT_BUDGET} segments: its base impedances, and so the as-built "
+                               "currents and the match, are less certain.")
             if not e.converged:
                 out.append(f"On {b.name} the base impedance of an element on its elevated radials still moves "
                            f"{100 * e.change:.1f} % per doubling of the segments at the finest mesh used "

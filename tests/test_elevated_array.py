@@ -228,3 +228,19 @@ def test_a_horizontal_half_wave_over_a_perfect_plane_has_the_textbook_pattern():
     got_e = 10 * np.log10(power[:, 0] / power[ref, 0])
     assert np.allclose(got_b, 10 * np.log10(broadside / broadside[ref]), atol=0.02)
     assert np.allclose(got_e, 10 * np.log10(end_on / end_on[ref]), atol=0.02)
+
+
+def test_a_big_array_is_meshed_within_the_segment_budget():
+    # 32 radials on each corner of a four-square: the element's own converged
+    # mesh would exceed the budget, so the array's is halved until it fits
+    from lobeplan.antenna.elevated import SEGMENT_BUDGET, array_mesh, elevated_mesh, segment_count
+    from lobeplan.antenna.layout import layout_positions_m
+
+    pos = layout_positions_m("square", 10.5)
+    args = (10.3, 0.02, 2.5, 32, 10.5, 1e-3)
+    pw = array_mesh(*args, pos, F_HZ, GROUND_CLASSES["average"])
+    assert pw < elevated_mesh(*args, F_HZ, GROUND_CLASSES["average"]).per_wavelength
+    assert segment_count(10.3, 32, 10.5, pos, F_HZ, pw) <= SEGMENT_BUDGET
+    # a pair of four radials keeps the element's mesh
+    assert array_mesh(10.3, 0.02, 2.5, 4, 10.5, 1e-3, PAIR, F_HZ) == elevated_mesh(10.3, 0.02, 2.5, 4, 10.5, 1e-3,
+                                                                                   F_HZ).per_wavelength

@@ -86,7 +86,8 @@ from .mom import C0_M_S, ETA0_OHM
 from .radials import NEAR_ZONE_WAVELENGTHS, soil_surface_impedance_ohm
 
 __all__ = ["ElevatedSolution", "ElevatedArray", "solve_elevated", "solve_elevated_array", "radial_directions",
-           "elevated_loss_ohm", "copper_loss_ohm", "ElevatedMesh", "elevated_mesh", "image_factor", "radiation_vectors", "MIDLINE_GAP"]
+           "elevated_loss_ohm", "copper_loss_ohm", "ElevatedMesh", "elevated_mesh", "array_mesh", "segment_count",
+           "SEGMENT_BUDGET", "SEGMENT_LIMIT", "image_factor", "radiation_vectors", "MIDLINE_GAP"]
 
 # Quadrature of the Galerkin pair integrals: near pairs (segments within
 # about two segment lengths of each other, and every segment with itself and
@@ -109,6 +110,11 @@ _MU0 = ETA0_OHM / C0_M_S
 _EPS0 = 1.0 / (ETA0_OHM * C0_M_S)
 _SEGMENTS_PER_WAVELENGTH = 40.0   # the coarsest mesh (at least 6 segments per vertical, 4 per radial)
 _MAX_PER_WAVELENGTH = 80.0
+
+SEGMENT_BUDGET = 1200
+"""The mesh of an array is coarsened (halved, down to 20 per wavelength) until it has at most this many segments."""
+SEGMENT_LIMIT = 2400
+"""More segments than this at 20 per wavelength is refused (the site checks): the dense solve grows as n^3."""
 
 MIDLINE_GAP = 0.02
 """Share of the distance to the midline left open at the tip of a radial cut there."""
@@ -213,6 +219,23 @@ def _cut_lengths(positions: np.ndarray, count: int, length_m: float) -> np.ndarr
     return out
 
 
+def _counts(height_m, radial_len, wavelength_m, per_wavelength):
+    """Segments on the vertical and on each radial, shape () and (n_el, n_radial)."""
+    scale = per_wavelength / _SEGMENTS_PER_WAVELENGTH      # the minimum counts refine with the mesh
+    n_v = max(math.ceil(6 * scale), math.ceil(per_wavelength * height_m / wavelength_m))
+    n_r = np.maximum(math.ceil(4 * scale), np.ceil(per_wavelength * np.asarray(radial_len) / wavelength_m))
+    return n_v, n_r.astype(int)
+
+
+def segment_count(height_m: float, count: int, length_m: float, positions_m, freq_hz: float,
+                  per_wavelength: float) -> int:
+    """Number of wire segments of an array on elevated radials at a mesh of ``per_wavelength``."""
+    pos = np.asarray(positions_m, dtype=float).reshape(-1, 2)
+    lam = C0_M_S / freq_hz
+    n_v, n_r = _counts(height_m, _cut_lengths(pos, count, length_m), lam, per_wavelength)
+    return int(pos.shape[0] * n_v + np.sum(n_r))
+
+
 def _geometry(height_m, hub_m, positions, radial_len, wavelength_m, per_wavelength):
     """Segments and basis functions of every element on its hub.
 
@@ -221,8 +244,7 @@ def _geometry(height_m, hub_m, positions, radial_len, wavelength_m, per_waveleng
     along the segment) and -1 falling; ``ports[m]`` is the element whose gap
     basis m crosses, or -1.
     """
-    scale = per_wavelength / _SEGMENTS_PER_WAVELENGTH      # the minimum counts refine with the mesh
-    n_v = max(math.ceil(6 * scale), math.ceil(per_wavelength * height_m / wavelength_m))
+    n_v, n_r_all = _counts(height_m, radial_len, wavelength_m, per_wavelength)
     dirs = radial_directions(radial_len.shape[1])
     starts, ends, element, vertical = [], [], [], []
     bases, ports = [], []
@@ -237,7 +259,7 @@ def _geometry(height_m, hub_m, positions, radial_len, wavelength_m, per_waveleng
         firsts, interior = [], []
         for j, d in enumerate(dirs):
             length = float(radial_len[e, j])
-            n_r = max(math.ceil(4 * scale), math.ceil(per_wavelength * length / wavelength_m))
+            n_r = int(n_r_all[e, j])
             d3 = np.array([d[0], d[1], 0.0])
             firsts.append(len(starts))
             for i in range(n_r):
@@ -477,8 +499,8 @@ def solve_elevated_array(height_m: float, radius_m: float, hub_m: float, count: 
         raise ValueError("elevated radials: count must be at least 2")
     pos = tuple((float(a), float(b)) for a, b in np.asarray(positions_m, dtype=float).reshape(-1, 2))
     if per_wavelength is None:
-        per_wavelength = elevated_mesh(height_m, radius_m, hub_m, count, length_m, wire_radius_m, freq_hz,
-                                       ground).per_wavelength
+        per_wavelength = array_mesh(height_m, radius_m, hub_m, count, length_m, wire_radius_m, pos, freq_hz,
+                                    ground)
     return _solve_array(float(height_m), float(radius_m), float(hub_m), int(count), float(length_m),
                         float(wire_radius_m), pos, float(freq_hz), ground, bool(copper), float(per_wavelength))
 
@@ -574,6 +596,18 @@ def elevated_mesh(height_m: float, radius_m: float, hub_m: float, count: int, le
         if change < MESH_TOLERANCE:
             return ElevatedMesh(n, change, True)
     return ElevatedMesh(n, change, False)
+
+
+def array_mesh(height_m: float, radius_m: float, hub_m: float, count: int, length_m: float,
+               wire_radius_m: float, positions_m, freq_hz: float, ground: Ground | None = None) -> float:
+    """Segments per wavelength for a whole array: one element's converged mesh (:func:`elevated_mesh`),
+    halved (down to 20 per wavelength) while the array would have more than :data:`SEGMENT_BUDGET`
+    segments."""
+    pw = elevated_mesh(height_m, radius_m, hub_m, count, length_m, wire_radius_m, freq_hz, ground).per_wavelength
+    while pw > 0.5 * _SEGMENTS_PER_WAVELENGTH and \
+            segment_count(height_m, count, length_m, positions_m, freq_hz, pw) > SEGMENT_BUDGET:
+        pw *= 0.5
+    return float(pw)
 
 
 def copper_loss_ohm(sol: ElevatedArray, base_current_a: np.ndarray | None = None) -> float:
