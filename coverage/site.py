@@ -23,7 +23,7 @@ from .geo.station import Station
 from .plan.model import Orientation
 from .propagation.model import PropagationSettings
 
-__all__ = ["Band", "Goal", "Site", "load", "loads", "MapSettings", "height_caveats", "SECTIONS", "mesh_caveats",
+__all__ = ["Band", "Goal", "Site", "load", "loads", "MapSettings", "height_caveats", "SECTIONS", "mesh_caveats", "radial_caveats",
            "element_caveats", "SHORT_WAVELENGTHS"]
 
 _REQUIRED = object()
@@ -552,37 +552,67 @@ def element_caveats(site: "Site") -> tuple[str, ...]:
     return tuple(out)
 
 
+def radial_caveats(site: "Site") -> tuple[str, ...]:
+    """Elevated radials lower than the soil's image depth on some band: the wire model's limit."""
+    import math
+
+    from .antenna.ground import complex_permittivity
+
+    a = site.array
+    if a is None or a.radials is None or a.radials.buried or a.ground.perfect:
+        return ()
+    low = []
+    for b in site.bands:
+        e = complex_permittivity(a.ground, b.freq_hz)
+        depth = abs(1.0 / (2j * math.pi * b.freq_hz / 299_792_458.0 * (e - 1.0 + 0j) ** 0.5))
+        if a.radials.height_m < depth:
+            low.append(f"{b.name} ({depth:.2g} m)")
+    if not low:
+        return ()
+    return (f"The elevated radials ({a.radials.height_m:g} m up) are lower than the depth of the soil's complex "
+            f"image (|1/gamma|, gamma its propagation constant) on "
+            f"{', '.join(low)}: there the soil shares their return current through the capacitance between "
+            "them, which the wire model (the soil seen only by its reflection) leaves out, so their loss is "
+            "less certain; radials lying on the ground are better given as buried (depth_m).",)
+
+
+def _names(items) -> str:
+    items = list(items)
+    return items[0] if len(items) == 1 else ", ".join(items[:-1]) + " and " + items[-1]
+
+
 def mesh_caveats(site: "Site") -> tuple[str, ...]:
     """Bands where the element mesh could not converge Z11 to 1 % by doubling."""
     from .antenna.mom import MESH_TOLERANCE, converged_mesh
 
     out = []
     a = site.array
-    elevated = a is not None and a.radials is not None and not a.radials.buried
-    for b in site.bands:
-        if elevated:
-            from .antenna.elevated import elevated_mesh
+    if a is not None and a.radials is not None and not a.radials.buried:
+        from .antenna.elevated import SEGMENT_BUDGET, array_mesh, elevated_mesh
 
-            r = a.radials
-            e = elevated_mesh(a.height_m, a.radius_m, r.height_m, r.count, r.length_m, 0.5e-3 * r.wire_diameter_mm,
-                              b.freq_hz, a.ground)
-            from .antenna.elevated import SEGMENT_BUDGET, array_mesh
-
+        r = a.radials
+        wire = 0.5e-3 * r.wire_diameter_mm
+        moving = []
+        for b in site.bands:
+            e = elevated_mesh(a.height_m, a.radius_m, r.height_m, r.count, r.length_m, wire, b.freq_hz, a.ground)
             for o in a.options:
-                pw = array_mesh(a.height_m, a.radius_m, r.height_m, r.count, r.length_m, 0.5e-3 * r.wire_diameter_mm,
-                                o.positions_m, b.freq_hz, a.ground)
+                pw = array_mesh(a.height_m, a.radius_m, r.height_m, r.count, r.length_m, wire, o.positions_m,
+                                b.freq_hz, a.ground)
                 if pw < e.per_wavelength:
                     out.append(f"On {b.name} the wires of option {o.name!r} are meshed at {pw:g} segments per "
                                f"wavelength, coarser than one element's {e.per_wavelength:g}, to keep the solution "
                                f"within {SEGMENT_BUDGET} segments: its base impedances, and so the as-built "
                                "currents and the match, are less certain.")
             if not e.converged:
-                out.append(f"On {b.name} the base impedance of an element on its elevated radials still moves "
-                           f"{100 * e.change:.1f} % per doubling of the segments at the finest mesh used "
-                           f"({e.per_wavelength:g} per wavelength; wanted under {100 * MESH_TOLERANCE:g} %): the "
-                           "feed gap's capacitance matters here, so the real base insulator's few pF shift the "
-                           "match and the as-built currents.")
-            continue
+                moving.append((b.name, e))
+        if moving:
+            out.append(f"On {_names(n for n, _ in moving)} the base impedance of an element on its elevated radials "
+                       f"still moves {_names(f'{100 * e.change:.1f} %' for _, e in moving)} per doubling of the "
+                       f"segments at the finest mesh used ({moving[0][1].per_wavelength:g} per wavelength; wanted "
+                       f"under {100 * MESH_TOLERANCE:g} %): the feed gap's capacitance matters here, so the real "
+                       "base insulator's few pF shift the match and the as-built currents.")
+        return tuple(out)
+    for b in site.bands:
         m = converged_mesh(site.array.height_m, site.array.radius_m, b.freq_hz)
         if not m.converged:
             out.append(f"On {b.name} the base impedance still moves {100 * m.change:.1f} % per doubling of the "

@@ -45,9 +45,11 @@ field at the surface, (1 + (n - 1)/(n + 1)) times the field of the wires
 alone, from the Biot-Savart law with retardation. Over a perfect plane the
 return current under a low wire would crowd into a strip as narrow as the
 wire's height; in real soil it spreads over about the soil's complex image
-depth |1/gamma| (gamma = j k0 sqrt(e - 1); Wait's complex image), so the
-distance to each wire in the field's 1/R^3 kernel is taken as
-sqrt(rho^2 + |1/gamma|^2). This is an approximation of ours, stated here: it
+depth |1/gamma| (gamma = j k0 sqrt(e - 1); Wait's complex image), so the field
+is read on a plane below the surface, where the radials at height z_r are
+sqrt(z_r^2 + |1/gamma|^2) away. One plane for every wire keeps Ampere's law
+(the whole return current is spread, none lost) and lets a dense, low screen
+cancel the vertical's field there, as a buried screen does. This is an approximation of ours, stated here: it
 matters when the radials are lower than about that depth (a few metres in
 average soil at HF, centimetres in sea water). The result is a loss
 resistance at the base, referred to the base current, which the planner
@@ -556,7 +558,7 @@ class ElevatedMesh:
     ``change`` is |Z11(2n) - Z11(n)| / |Z11(2n)| of the last doubling
     tried; ``converged`` is whether it fell under
     :data:`lobeplan.antenna.mom.MESH_TOLERANCE` before the finest mesh
-    (160 per wavelength, or segments four radii long) was reached.
+    (80 per wavelength, or segments four radii long) was reached.
     """
 
     per_wavelength: float
@@ -571,7 +573,7 @@ def elevated_mesh(height_m: float, radius_m: float, hub_m: float, count: int, le
 
     From 40 per wavelength (at least 6 segments on the vertical and 4 on
     each radial, minimums that double with the mesh), doubled while Z11
-    changes by 1 % or more, up to 160 per wavelength or segments four radii
+    changes by 1 % or more, up to 80 per wavelength or segments four radii
     long. As for the perfect-plane model, a drift that will not settle is
     the delta-gap feed's capacitance (a real base insulator's matters as
     much).
@@ -755,21 +757,26 @@ def image_factor(ground: Ground | None, freq_hz: float) -> complex:
     return complex((n - 1.0) / (n + 1.0))
 
 
-def _ground_field(sol: ElevatedSolution, points: np.ndarray, k: float, spread_m: float = 0.0) -> np.ndarray:
-    """Tangential H of the wires alone on the plane z = 0, shape (n, 3).
+def _ground_field(sol: ElevatedSolution, points: np.ndarray, k: float, depth_m: float = 0.0) -> np.ndarray:
+    """Tangential H of the wires alone at the ground points, taken ``depth_m`` below them, shape (n, 3).
 
-    ``spread_m`` spreads the peak under a wire over that distance (the soil's
-    complex image depth): the distance to a segment's line is taken as
-    sqrt(rho^2 + spread^2) in the 1/R^3 kernel.
+    The soil spreads the return current under a low wire over about its
+    complex image depth; the field is therefore read on a plane that much
+    deeper (see :func:`elevated_loss_ohm`). One plane for every wire keeps
+    Ampere's law (the field across any plane under a long wire carries half
+    its current, the image the other half) and keeps a dense, low screen
+    cancelling the vertical's field as it does on the surface.
     """
     start, end, cur = sol.seg_start_m, sol.seg_end_m, sol.seg_current_a
+    points = np.array(points, dtype=float)
+    points[:, 2] -= depth_m
     tq = end - start
     lq = np.linalg.norm(tq, axis=1)
     uq = tq / lq[:, None]
     rel = points[:, None, :] - start[None, :, :]                            # (n, q, 3)
     s0 = np.einsum("nqc,qc->nq", rel, uq)
     perp2 = np.maximum(np.einsum("nqc,nqc->nq", rel, rel) - s0 * s0, 0.0)
-    rho = np.sqrt(perp2 + max(spread_m * spread_m, 1e-18))
+    rho = np.sqrt(perp2 + 1e-18)
     u_lo = np.arcsinh(-s0 / rho)
     u_hi = np.arcsinh((lq[None, :] - s0) / rho)
     half = 0.5 * (u_hi - u_lo)
@@ -821,6 +828,8 @@ def elevated_loss_ohm(ground: Ground, height_m: float, radius_m: float, hub_m: f
     # spreads over about this, not into the sharp peak of a perfect plane
     e = complex_permittivity(ground, freq_hz)
     spread = float(abs(1.0 / (1j * 2.0 * math.pi / lam * np.sqrt(e - 1.0 + 0j))))
+    # the plane where a wire at the hub's height is sqrt(hub^2 + spread^2) away
+    depth = math.sqrt(hub_m * hub_m + spread * spread) - hub_m
     k = 2.0 * math.pi / lam
     # the mesh the array is solved on (elevated_mesh): near an anti-resonance the small base
     # current, and so the loss referred to it, moves with the mesh as Z11 does
@@ -839,7 +848,18 @@ def elevated_loss_ohm(ground: Ground, height_m: float, radius_m: float, hub_m: f
     phi = half_sector * np.sinh(stretch * tt) / math.sinh(stretch)
     w_phi = half_sector * 0.5 * wx * stretch * np.cosh(stretch * tt) / math.sinh(stretch)
     pts = np.stack([np.outer(rho, np.cos(phi)), np.outer(rho, np.sin(phi)), np.zeros((rho.size, phi.size))], -1)
-    h = surface * _ground_field(sol, pts.reshape(-1, 3), k, spread).reshape(rho.size, phi.size, 3)
-    h2 = np.sum(np.abs(h) ** 2, axis=-1)
+    flat = pts.reshape(-1, 3)
+    h_top = surface * _ground_field(sol, flat, k, 0.0).reshape(rho.size, phi.size, 3)
+    h_low = surface * _ground_field(sol, flat, k, depth).reshape(rho.size, phi.size, 3)
+    # The azimuthal mean of H_phi is the bulk return current, which the soil must
+    # carry as it is (on the surface); what varies with azimuth (the peaks under
+    # each wire, the gaps between them) the soil spreads over its image depth:
+    # that part is read on the deeper plane. The mirror symmetry about the
+    # radial at phi = 0 makes H_rho odd, so its mean over the sector is zero.
+    e_phi = np.stack([-np.sin(phi), np.cos(phi), np.zeros(phi.size)], -1)[None, :, :]
+    mean_top = np.sum(np.sum(h_top * e_phi, -1) * w_phi, axis=1) / np.sum(w_phi)   # (n_rho,)
+    mean_low = np.sum(np.sum(h_low * e_phi, -1) * w_phi, axis=1) / np.sum(w_phi)
+    ripple = h_low - mean_low[:, None, None] * e_phi
+    h2 = np.abs(mean_top[:, None]) ** 2 + np.sum(np.abs(ripple) ** 2, axis=-1)
     area = (w_u * rho * rho)[:, None] * w_phi[None, :]          # rho drho dphi = rho^2 du dphi
     return float(2 * count * re_zg * np.sum(area * h2))       # 2N half-sectors; R = 2P/|I|^2 with P = 1/2 ...

@@ -291,7 +291,9 @@ def gains_from_currents_dbi(sol: CoupledElements | ElevatedArray, grounds, base_
     """
     k = 2.0 * math.pi * sol.freq_hz / C0_M_S
     if isinstance(sol, ElevatedArray):
-        power = _wire_power(sol, grounds, base_current_a, _grid_vectors(sol), ELEVATION_DEG)
+        i = np.asarray(base_current_a, dtype=complex)
+        fields = [(i @ _ground_vectors(sol, g)).reshape(2, ELEVATION_DEG.size, AZIMUTH_DEG.size) for g in grounds]
+        power = np.stack([f.real ** 2 + f.imag ** 2 for f in fields]).sum(axis=1)
     else:
         nodes = sol.currents_on_wires(base_current_a)                       # (n_el, n_node)
         vert = np.stack([nodes @ _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size, g).T
@@ -310,6 +312,21 @@ def _grid_vectors(sol: ElevatedArray) -> tuple[np.ndarray, ...]:
     out = radiation_vectors(sol, ELEVATION_DEG, AZIMUTH_DEG)
     for a in out:
         a.flags.writeable = False
+    return out
+
+
+@functools.lru_cache(maxsize=32)
+def _ground_vectors(sol: ElevatedArray, ground: Ground) -> np.ndarray:
+    """Per port, the vertical and horizontal far field over the grid with this ground's reflection.
+
+    Shape (n_port, 2 * 91 * 360): [v_dir + R_v v_img, h_dir - R_h h_img], so a
+    pattern is one product with the base currents (cached per solution and ground).
+    """
+    v_dir, v_img, h_dir, h_img = _grid_vectors(sol)
+    rv = reflection_vertical(ground, sol.freq_hz, ELEVATION_DEG)[None, :, None]
+    rh = reflection_horizontal(ground, sol.freq_hz, ELEVATION_DEG)[None, :, None]
+    out = np.stack([v_dir + rv * v_img, h_dir - rh * h_img], axis=1).reshape(v_dir.shape[0], -1)
+    out.flags.writeable = False
     return out
 
 
@@ -334,6 +351,15 @@ def _wire_power(sol: ElevatedArray, grounds, base_current_a, vectors, elevation_
     return np.stack(out)
 
 
+@functools.lru_cache(maxsize=256)
+def _toward_vectors(sol: ElevatedArray, elevation_index: int, azimuth_deg: tuple[float, ...]) -> tuple:
+    """Radiation vectors at one elevation row toward a few azimuths (cached: searches ask again and again)."""
+    out = radiation_vectors(sol, ELEVATION_DEG[elevation_index:elevation_index + 1], np.asarray(azimuth_deg))
+    for a in out:
+        a.flags.writeable = False
+    return out
+
+
 def gain_toward_dbi(sol: CoupledElements | ElevatedArray, ground: Ground, base_current_a: np.ndarray,
                     input_power_w: float, elevation_index: int, azimuth_deg) -> np.ndarray:
     """Gain at one elevation row toward a few azimuths (array frame), dBi.
@@ -348,8 +374,8 @@ def gain_toward_dbi(sol: CoupledElements | ElevatedArray, ground: Ground, base_c
     k = 2.0 * math.pi * sol.freq_hz / C0_M_S
     if isinstance(sol, ElevatedArray):
         el = ELEVATION_DEG[elevation_index:elevation_index + 1]
-        vec = radiation_vectors(sol, el, np.atleast_1d(np.asarray(azimuth_deg, dtype=float)))
-        power = _wire_power(sol, (ground,), base_current_a, vec, el)[0, 0]
+        az = tuple(float(a) for a in np.atleast_1d(np.asarray(azimuth_deg, dtype=float)))
+        power = _wire_power(sol, (ground,), base_current_a, _toward_vectors(sol, int(elevation_index), az), el)[0, 0]
     else:
         nodes = sol.currents_on_wires(base_current_a)
         kern = _vertical_kernel(sol.freq_hz, sol.segment_m, sol.node_z_m.size, ground)[elevation_index]

@@ -327,7 +327,9 @@ def build(site, args=None) -> dict:
                 "design": _design(spec, option, band),
                 **radial_table_json(radial_table(spec, option, band.freq_hz)),
             })
-    return {"bands": out, "radials": radials_json(spec)}
+    from ..site import radial_caveats
+
+    return {"bands": out, "radials": radials_json(spec), "caveats": list(radial_caveats(site))}
 
 
 def _elevated_copper(spec, freq_hz):
@@ -540,16 +542,21 @@ def _table_text(b, rad) -> list[str]:
 
 
 def _footnotes(result) -> list[str]:
+    rad = result.get("radials")
+    if rad is not None and rad["height_m"] is not None:
+        source = ("\"from the radials\": the soil's surface resistance times the field the wires make on it, "
+                  "integrated to half a wavelength (the field's mean around the element as it is, what varies "
+                  "around it spread over the soil's image depth); the wires' copper is in the matrix")
+    else:
+        source = ("\"from the radials\": buried-screen surface impedance in parallel with the soil, integrated "
+                  "over the base's field to half a wavelength, the wires' copper included")
     notes = ["Ground loss: series resistance at each base standing for the radial system and soil "
-             "(\"from the radials\": buried-screen surface impedance in parallel with the soil, integrated "
-             "over the base's field to half a wavelength, the wires' copper included; \"as given\": "
-             "ground_loss_ohm of the site, default 2 ohm).",
+             f"({source}; \"as given\": ground_loss_ohm of the site, default 2 ohm).",
              "Radial table: loss = that resistance per base (cu: the part of it in the radial wires' own "
              "copper, skin effect; the rest is the soil's); eff. = share of the power into the bases not lost "
              "in the ground; gain dB = change of the state's gain toward its beam against the site's own "
              "ground system; as built = true currents (amplitude/phase rel. element 1) and front-to-back of "
              "fed states."]
-    rad = result.get("radials")
     if rad is not None and rad["height_m"] is None:
         notes.append("Neighbouring elements: radials cut where they meet and bonded along the midline "
                      "(each base's loss from its own field; cross terms between elements left out).")
@@ -560,4 +567,5 @@ def _footnotes(result) -> list[str]:
                      "radials that would cross a midline between two elements stop just short of it, unbonded. "
                      "The soil's loss under them is each element's with its own radials alone (cross terms "
                      "left out), in series at its base; the copper loss is in the matrix.")
+    notes += result.get("caveats", [])
     return notes

@@ -10,7 +10,7 @@ from pathlib import Path
 import numpy as np
 
 from ..safety import CAUTIONS
-from ..site import element_caveats, height_caveats, mesh_caveats
+from ..site import element_caveats, height_caveats, mesh_caveats, radial_caveats
 from .ground import ground_line, ground_summary
 from .widths import width
 
@@ -122,6 +122,7 @@ def build_from_plan(site, plan) -> dict:
         "states": _state_kinds(plan),
         "stakes": stakes_json(site, plan),
         "caveats": list(plan.caveats) + list(height_caveats(site)) + list(mesh_caveats(site))
+        + list(radial_caveats(site))
         + list(element_caveats(site)),
         "ground_system": ground_summary(site),
         "cautions": list(CAUTIONS),
