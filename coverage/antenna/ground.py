@@ -65,13 +65,7 @@ def reflection_vertical(ground: Ground, freq_hz: float, elevation_deg) -> np.nda
     ----------
     Kraus, *Antennas*, 2nd ed., sec. 12-2; the same form appears in ITU-R texts.
     """
-    psi = np.radians(np.asarray(elevation_deg, dtype=float))
-    if ground.perfect:
-        return np.ones(psi.shape, dtype=complex)
-    e = complex_permittivity(ground, freq_hz)
-    s = np.sin(psi)
-    root = np.sqrt(e - np.cos(psi) ** 2 + 0j)
-    return (e * s - root) / (e * s + root)
+    return _fresnel(ground, freq_hz, elevation_deg, vertical=True)
 
 
 def reflection_horizontal(ground: Ground, freq_hz: float, elevation_deg) -> np.ndarray:
@@ -95,10 +89,15 @@ def reflection_horizontal(ground: Ground, freq_hz: float, elevation_deg) -> np.n
     ----------
     Kraus, *Antennas*, 2nd ed., sec. 12-2 (horizontal polarization).
     """
+    return _fresnel(ground, freq_hz, elevation_deg, vertical=False)
+
+
+def _fresnel(ground: Ground, freq_hz: float, elevation_deg, vertical: bool) -> np.ndarray:
+    """(a sin psi - root) / (a sin psi + root), root = sqrt(e - cos^2 psi), a = e (vertical) or 1."""
     psi = np.radians(np.asarray(elevation_deg, dtype=float))
     if ground.perfect:
-        return -np.ones(psi.shape, dtype=complex)
+        return np.full(psi.shape, 1.0 if vertical else -1.0, dtype=complex)
     e = complex_permittivity(ground, freq_hz)
-    s = np.sin(psi)
+    s = (e if vertical else 1.0) * np.sin(psi)
     root = np.sqrt(e - np.cos(psi) ** 2 + 0j)
     return (s - root) / (s + root)
