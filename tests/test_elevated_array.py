@@ -10,8 +10,7 @@ import math
 import numpy as np
 import pytest
 
-from lobeplan.antenna.elevated import (MIDLINE_GAP, copper_loss_ohm, radial_directions, solve_elevated,
-                                       solve_elevated_array)
+from lobeplan.antenna.elevated import MIDLINE_GAP, copper_loss_ohm, radial_directions, solve_elevated_array
 from lobeplan.antenna.ground import reflection_horizontal
 from lobeplan.antenna.model import GROUND_CLASSES
 from lobeplan.antenna.mom import C0_M_S, solve_elements

@@ -11,7 +11,6 @@ from ..antenna.pattern import (array_pattern, base_impedance_ohm, coupled_elemen
                                lobe_bearings_deg, state_currents, state_drive)
 from ..antenna.radial_table import radial_table
 from ..antenna.radials import ground_loss
-from ..errors import UsageError
 from .ground import radials_json, system_text
 from .pattern import current_rows, pair, select_bands
 
